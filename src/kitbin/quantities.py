@@ -31,7 +31,9 @@ _ALL = [
     QuantityKind("i_rise", "current", "DC current giving the allowed temperature rise (A)"),
     QuantityKind("r_th", "thermal_resistance", "thermal resistance to ambient (K/W)", False),
     QuantityKind("tau_th", "time", "thermal time constant (s)"),
-    QuantityKind("rise", "temperature_rise", "steady temperature rise at a test current (K)", False),
+    QuantityKind(
+        "rise", "temperature_rise", "steady temperature rise at a test current (K)", False
+    ),
     QuantityKind("resistance", "resistance", "resistance (ohm)"),
     QuantityKind("capacitance", "capacitance", "capacitance (F)"),
     QuantityKind("esr", "resistance", "equivalent series resistance (ohm)", False),
