@@ -1,0 +1,1 @@
+"""Evidence, verdicts, ranking and resistor-network search (pure: no I/O, no database)."""
