@@ -57,7 +57,7 @@ def root(
         False, "--version", callback=_version, is_eager=True, help="Show the version."
     ),
 ) -> None:
-    """kitbin keeps a drawer of kit parts, their bench readings and the converters built from them."""
+    """Keep a drawer of kit parts, their bench readings and the converters built from them."""
     ctx.obj = CliState(db=db)
 
 
