@@ -1,0 +1,1 @@
+"""Alembic environment of the kitbin schema (configured in code; no alembic.ini)."""
