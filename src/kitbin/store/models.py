@@ -24,6 +24,7 @@ from sqlalchemy import (
     MetaData,
     String,
     Text,
+    TypeDecorator,
     UniqueConstraint,
 )
 from sqlalchemy.orm import DeclarativeBase, Mapped, deferred, mapped_column, relationship
@@ -49,6 +50,28 @@ def utcnow() -> dt.datetime:
     return dt.datetime.now(dt.UTC)
 
 
+class UTCDateTime(TypeDecorator):
+    """A timestamp stored in UTC and always returned timezone-aware.
+
+    SQLite keeps no zone, so values come back naive; they are UTC by construction.
+    """
+
+    impl = DateTime(timezone=True)
+    cache_ok = True
+
+    def process_bind_param(self, value, dialect):
+        if value is None:
+            return None
+        if value.tzinfo is None:
+            value = value.replace(tzinfo=dt.UTC)
+        return value.astimezone(dt.UTC)
+
+    def process_result_value(self, value, dialect):
+        if value is not None and value.tzinfo is None:
+            value = value.replace(tzinfo=dt.UTC)
+        return value
+
+
 def _in_list(column: str, values: tuple[str, ...]) -> str:
     """SQL text ``column IN ('a', 'b')`` for a CHECK over a fixed, trusted list."""
     quoted = ", ".join("'" + v.replace("'", "''") + "'" for v in values)
@@ -71,7 +94,7 @@ class Kit(Base):
     source: Mapped[str | None] = mapped_column(String(200))
     bought_on: Mapped[dt.date | None] = mapped_column(Date)
     notes: Mapped[str | None] = mapped_column(Text)
-    created_at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
+    created_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
 
     bins: Mapped[list[Bin]] = relationship(back_populates="kit", order_by="Bin.label")
 
@@ -107,10 +130,8 @@ class Bin(Base):
     qty: Mapped[int] = mapped_column(Integer, default=0)
     qty_reserved: Mapped[int] = mapped_column(Integer, default=0)
     notes: Mapped[str | None] = mapped_column(Text)
-    created_at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
-    updated_at: Mapped[dt.datetime] = mapped_column(
-        DateTime(timezone=True), default=utcnow, onupdate=utcnow
-    )
+    created_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
+    updated_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow, onupdate=utcnow)
 
     kit: Mapped[Kit | None] = relationship(back_populates="bins")
     properties: Mapped[list[BinProperty]] = relationship(
@@ -162,7 +183,7 @@ class Capture(Base):
     results: Mapped[dict[str, Any]] = mapped_column(JSON, default=dict)
     #: Curves as lists, e.g. {"i": [...], "l": [...]} in A and H.
     curve: Mapped[dict[str, Any] | None] = mapped_column(JSON)
-    created_at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
+    created_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
 
     bin: Mapped[Bin] = relationship(back_populates="captures")
     readings: Mapped[list[Reading]] = relationship(back_populates="capture")
@@ -191,7 +212,7 @@ class Reading(Base):
     conditions: Mapped[dict[str, Any]] = mapped_column(JSON, default=dict)
     method: Mapped[str | None] = mapped_column(String(60))
     instrument: Mapped[str | None] = mapped_column(String(120))
-    taken_at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
+    taken_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
     capture_id: Mapped[int | None] = mapped_column(
         ForeignKey("capture.id", ondelete="SET NULL"), index=True
     )
@@ -215,7 +236,7 @@ class StockMove(Base):
     )
     #: The bin's quantity right after this move.
     qty_after: Mapped[int] = mapped_column(Integer)
-    at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
+    at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
 
     bin: Mapped[Bin] = relationship(back_populates="moves")
 
@@ -230,10 +251,8 @@ class Plan(Base):
     topology: Mapped[str] = mapped_column(String(20))
     spec: Mapped[dict[str, Any]] = mapped_column(JSON, default=dict)
     notes: Mapped[str | None] = mapped_column(Text)
-    created_at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
-    updated_at: Mapped[dt.datetime] = mapped_column(
-        DateTime(timezone=True), default=utcnow, onupdate=utcnow
-    )
+    created_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
+    updated_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow, onupdate=utcnow)
 
     pick_lists: Mapped[list[PickList]] = relationship(
         back_populates="plan", cascade="all, delete-orphan", order_by="PickList.id"
@@ -253,10 +272,8 @@ class PickList(Base):
     plan_id: Mapped[int] = mapped_column(ForeignKey("plan.id", ondelete="CASCADE"), index=True)
     boards: Mapped[int] = mapped_column(Integer, default=1)
     state: Mapped[str] = mapped_column(String(20), default="draft")
-    created_at: Mapped[dt.datetime] = mapped_column(DateTime(timezone=True), default=utcnow)
-    updated_at: Mapped[dt.datetime] = mapped_column(
-        DateTime(timezone=True), default=utcnow, onupdate=utcnow
-    )
+    created_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow)
+    updated_at: Mapped[dt.datetime] = mapped_column(UTCDateTime, default=utcnow, onupdate=utcnow)
     #: What the pick list was computed from (plan spec, verdicts), frozen as JSON.
     snapshot: Mapped[dict[str, Any] | None] = mapped_column(JSON)
 
