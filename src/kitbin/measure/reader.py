@@ -352,13 +352,12 @@ def _numeric_block(lines: list[str], delim: str) -> tuple[int, int, str] | None:
                 and any(t not in _MISSING for t in toks)
             )
             if fields_ok:
+                # one decimal mark per block: commas and points never mix
                 has_comma = any("," in t for t in toks)
-                if delim == "," and has_comma:
-                    fields_ok = False
-                elif has_comma and (point_decimal or any("." in t for t in toks)):
-                    fields_ok = False
-                elif has_comma and any(t.count(",") > 1 for t in toks):
-                    fields_ok = False
+                has_point = any("." in t for t in toks)
+                fields_ok = not (
+                    (has_comma and (has_point or point_decimal)) or (has_point and comma_decimal)
+                )
         if not fields_ok:
             if count:
                 break
@@ -368,8 +367,6 @@ def _numeric_block(lines: list[str], delim: str) -> tuple[int, int, str] | None:
             comma_decimal = True
         if any("." in t for t in fields):
             point_decimal = True
-        if comma_decimal and point_decimal:
-            break
         count += 1
         start = k
     if not count or start is None or n_fields is None:

@@ -119,7 +119,7 @@ def switching_current(
     low-duty pulse tester); at turn-off the current falls through the freewheel
     path at ``v_off`` (V) until it is zero. Returns (time s, current A).
     """
-    n = int(round((t_lead + periods * period) / dt))
+    n = round((t_lead + periods * period) / dt)
     t = np.arange(n) * dt
     i = np.zeros(n)
     t_tab, i_tab = _table_to_time(model, v, r_loop, t_on)
