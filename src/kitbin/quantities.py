@@ -54,6 +54,17 @@ _ALL = [
     QuantityKind("ton_min", "time", "controller minimum on-time (s)", False),
     QuantityKind("d_max", "ratio", "controller maximum duty cycle (fraction)"),
     QuantityKind("rds_on", "resistance", "switch on-resistance (ohm)", False),
+    QuantityKind("i_ripple", "current", "capacitor ripple-current rating (A rms)"),
+    QuantityKind("if_peak", "current", "diode repetitive peak forward current rating (A)"),
+    # Derived for a candidate by the matcher, not recorded (stage.demands says how):
+    QuantityKind(
+        "rise_load",
+        "temperature_rise",
+        "predicted steady rise at the plan's RMS current, from dcr and r_th (K)",
+        False,
+    ),
+    QuantityKind("divider_ratio", "ratio", "feedback divider ratio Rtop/Rbot"),
+    QuantityKind("divider_sum", "resistance", "feedback divider total Rtop + Rbot (ohm)", False),
 ]
 
 QUANTITIES: dict[str, QuantityKind] = {q.name: q for q in _ALL}
