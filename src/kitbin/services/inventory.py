@@ -13,7 +13,7 @@ import math
 from collections.abc import Iterable, Sequence
 from typing import TYPE_CHECKING, Any
 
-from kitbin.errors import KitbinError, MarkingError, NotFoundError, QuantityError
+from kitbin.errors import KitbinError, NotFoundError, QuantityError
 from kitbin.quantities import NOMINAL_QUANTITY, QUANTITIES
 from kitbin.services import inputs
 from kitbin.store import Store, queries
@@ -229,11 +229,12 @@ def _blank(text: str | None) -> str | None:
 # -- bins --------------------------------------------------------------------------
 
 
-def decode_marking(kind: str, marking: str) -> tuple[float, float, float] | None:
-    """Nominal value (SI) and tolerance (minus, plus) from a marking, if it decodes.
+def decode_marking(kind: str, marking: str) -> Any | None:
+    """The decoded marking (:class:`kitbin.markings.Marking`), or None for kinds whose
+    marking carries no value (diodes, ICs, other).
 
-    Uses :mod:`kitbin.markings` (IEC 60062 colour bands, numeric and RKM codes).
-    Returns None for kinds whose marking carries no value (diodes, ICs).
+    ``brown black black silver`` on an inductor is 10 µH ±10 % (IEC 60062 colour
+    code read in µH).
 
     Raises
     ------
@@ -242,31 +243,34 @@ def decode_marking(kind: str, marking: str) -> tuple[float, float, float] | None
     """
     if kind not in NOMINAL_QUANTITY:
         return None
-    from kitbin import markings
+    from kitbin.markings import decode_marking as _decode
 
-    decoded = markings.decode_marking(marking, kind)
-    tol_minus, tol_plus = decoded.tol_minus, decoded.tol_plus
-    return float(decoded.value), float(tol_minus), float(tol_plus)
+    return _decode(marking, kind)
 
 
 def _nominal_and_tolerance(
     kind: str, nominal: str | None, tolerance: str | None, marking: str | None
-) -> tuple[float | None, float | None, float | None]:
-    """Nominal and tolerance from explicit options, else from the marking."""
+) -> tuple[float | None, float | None, float | None, str | None]:
+    """Nominal, tolerance and marking text from explicit options, else from the marking.
+
+    An explicit ``nominal`` wins over the marking; the marked tolerance is used
+    only when it belongs to the same value.
+    """
     value = inputs.parse_nominal(kind, nominal) if nominal else None
     tol = inputs.parse_tolerance(tolerance) if tolerance else None
-    if marking and (value is None or tol is None):
-        decoded = decode_marking(kind, marking)
+    text = _blank(marking)
+    if text:
+        decoded = decode_marking(kind, text)
         if decoded is not None:
+            text = decoded.text
+            same = value is None or math.isclose(value, decoded.value, rel_tol=1e-6)
             if value is None:
-                value = decoded[0]
-                if tol is None:
-                    tol = (decoded[1], decoded[2])
-            elif tol is None and math.isclose(value, decoded[0], rel_tol=1e-6):
-                tol = (decoded[1], decoded[2])
+                value = float(decoded.value)
+            if tol is None and same and decoded.tol_minus is not None:
+                tol = (float(decoded.tol_minus), float(decoded.tol_plus))
     if tol is None:
-        return value, None, None
-    return value, tol[0], tol[1]
+        return value, None, None, text
+    return value, tol[0], tol[1], text
 
 
 def _set_properties(
@@ -321,7 +325,7 @@ def add_bin(
     """
     label = inputs.check_label(label)
     kind = inputs.parse_kind(kind)
-    value, tol_minus, tol_plus = _nominal_and_tolerance(kind, nominal, tolerance, marking)
+    value, tol_minus, tol_plus, marking = _nominal_and_tolerance(kind, nominal, tolerance, marking)
     parsed_props = [inputs.parse_property(p) for p in props]
     if qty < 0:
         raise QuantityError(f"--qty {qty}: a starting quantity cannot be negative")
@@ -390,10 +394,10 @@ def edit_bin(
                 b.nominal = b.tol_minus = b.tol_plus = None
         if kit is not None:
             b.kit = get_kit(session, kit) if kit.strip() else None
-        if marking is not None:
-            b.marking = _blank(marking)
-        if nominal is not None or tolerance is not None or (marking and b.kind in NOMINAL_QUANTITY):
-            value, tm, tp = _nominal_and_tolerance(b.kind, nominal, tolerance, marking)
+        if nominal is not None or tolerance is not None or marking is not None:
+            value, tm, tp, text = _nominal_and_tolerance(b.kind, nominal, tolerance, marking)
+            if marking is not None:
+                b.marking = text
             if value is not None:
                 b.nominal = value
             if tm is not None:
@@ -612,7 +616,6 @@ def adjust_stock(store: Store, label: str, delta: int, why: str) -> dict[str, An
 
 __all__ = [
     "KEY_QUANTITIES",
-    "MarkingError",
     "add_bin",
     "add_kit",
     "adjust_stock",
