@@ -63,6 +63,11 @@ def root(
 
 # Command modules register themselves here. Each imports only typer at module level.
 # -- registered command modules (keep one line each) --
+__import__("kitbin.cli.kits", fromlist=["register"]).register(app)
+__import__("kitbin.cli.bins", fromlist=["register"]).register(app)
+__import__("kitbin.cli.stock", fromlist=["register"]).register(app)
+__import__("kitbin.cli.record", fromlist=["register"]).register(app)
+__import__("kitbin.cli.transfer", fromlist=["register"]).register(app)
 # -- end of registered command modules --
 
 
