@@ -7,6 +7,7 @@ This keeps 4.7 kΩ exactly ``4700.0`` rather than ``4699.999...``.
 
 from __future__ import annotations
 
+import math
 from decimal import Decimal
 
 from kitbin.errors import MarkingError
@@ -58,8 +59,8 @@ def split_digits(value: float, figures: int) -> tuple[int, int]:
     MarkingError
         When the value needs more significant digits than ``figures``.
     """
-    if not value > 0:
-        raise MarkingError(f"{value!r} cannot be marked: expected a positive value")
+    if not (value > 0 and math.isfinite(value)):
+        raise MarkingError(f"{value!r} cannot be marked: expected a positive finite value")
     d = to_decimal(value)
     _sign, digits, exp = d.as_tuple()
     digits_str = "".join(map(str, digits)).rstrip("0") or "0"

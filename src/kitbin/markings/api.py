@@ -237,17 +237,24 @@ def encode_marking(
             text = codes.encode_e96(value)
         if tol_minus is not None:
             text += encode_tolerance_letter(tol_minus, tol_plus, kind, value)
+    if s == "colour":
+        # read as written: a code that would also be valid turned round is still
+        # the right code for this value
+        reading = colour.decode_bands(text, reverse=False)
+        got = from_digits(reading.significand, reading.exponent + COLOUR_UNIT_EXP[kind])
+        if abs(got - value) > 1e-9 * abs(value):
+            raise MarkingError(
+                f"{format_si(value, UNIT_SYMBOL[kind])} cannot be colour coded exactly: "
+                f"{text!r} reads {format_si(got, UNIT_SYMBOL[kind])}"
+            )
+        return text
     back = decode_marking(text, kind)
     if back.scheme != s or abs(back.value - value) > 1e-9 * abs(value):
         raise MarkingError(
             f"{format_si(value, UNIT_SYMBOL[kind])} written as {text!r} would read back as "
             f"{back.describe()}: expected a code that reads back unchanged"
         )
-    if (
-        tol_minus is not None
-        and s != "colour"
-        and (back.tol_minus is None or abs(back.tol_minus - tol_minus) > 1e-9)
-    ):
+    if tol_minus is not None and (back.tol_minus is None or abs(back.tol_minus - tol_minus) > 1e-9):
         raise MarkingError(
             f"the tolerance letter in {text!r} would not read back as a tolerance "
             f"on {codes.a(kind)}: expected a tolerance this code can carry"

@@ -79,8 +79,10 @@ _UNIT_SUFFIX = {
     "capacitor": re.compile(r"(?<=[PNUM])F$"),
     "inductor": re.compile(r"(?<=[PNUM])H$"),
 }
-_RKM = re.compile(r"^(\d*)([A-Z])(\d*)([A-Z]?)$")
-_DECIMAL = re.compile(r"^(\d*)\.(\d*)([A-Z])([A-Z]?)$")
+# ASCII digits only: str.isdigit() and \d also accept superscripts and other scripts.
+_DIGITS = re.compile(r"^[0-9]+$")
+_RKM = re.compile(r"^([0-9]*)([A-Z])([0-9]*)([A-Z]?)$")
+_DECIMAL = re.compile(r"^([0-9]*)\.([0-9]*)([A-Z])([A-Z]?)$")
 
 
 @dataclass(frozen=True)
@@ -222,7 +224,7 @@ def decode_code(text: str, kind: str, scheme: str | None = None) -> CodeReading:
     s = _compact(text, kind)
     if not s:
         raise MarkingError(f"{original!r} is empty: expected a numeric, RKM or E96 code")
-    if s.isdigit():
+    if _DIGITS.match(s):
         if scheme not in (None, "numeric"):
             raise MarkingError(f"{original!r} is a numeric code, not {a(str(scheme))} code")
         return CodeReading(_numeric(s, kind, original), "numeric", s)

@@ -199,6 +199,9 @@ def _read(bands: tuple[str, ...]) -> BandReading | str:
         if b not in DIGIT:
             return f"{b} is not a digit colour"
     mult = bands[n_digits]
+    if digits[0] == "black":
+        # a leading zero: no part starts with a black band (common practice, no source)
+        return "black is not a first band"
     significand = int("".join(str(DIGIT[b]) for b in digits))
     if n >= 4:
         tol_band = bands[n_digits + 1]
@@ -212,42 +215,48 @@ def _read(bands: tuple[str, ...]) -> BandReading | str:
         if bands[5] not in TCR:
             return f"{bands[5]} is not a TCR colour"
         tcr = TCR[bands[5]]
-    if significand == 0:
-        return "the digits are all black"
     return BandReading(significand, MULTIPLIER[mult], tolerance, tcr, bands)
 
 
 def _plausible(reading: BandReading) -> bool:
-    """True when the value is in the E series that its tolerance implies."""
+    """True when the value is a preferred value for its tolerance band.
+
+    That is a member of the series the tolerance implies (E6 for ±20 %, E12 for
+    ±10 %, E24 for ±5 %, E48/E96/E192 for ±2/1/0.5 % and tighter) or of E24, which
+    is also made in the tight tolerances (common practice, no source).
+    """
     t = reading.tolerance
-    name = (
-        "E6"
-        if t >= 0.2
-        else "E12"
-        if t >= 0.1
-        else "E24"
-        if t >= 0.05
-        else "E48"
-        if t >= 0.02
-        else "E96"
-        if t >= 0.01
-        else "E192"
-    )
-    return series.is_preferred(reading.value, name)
+    if t >= 0.2:
+        names = ("E6",)
+    elif t >= 0.1:
+        names = ("E12",)
+    elif t >= 0.05:
+        names = ("E24",)
+    elif t >= 0.02:
+        names = ("E24", "E48")
+    elif t >= 0.01:
+        names = ("E24", "E96")
+    else:
+        names = ("E24", "E192")
+    return any(series.is_preferred(reading.value, name) for name in names)
 
 
-def decode_bands(bands: tuple[str, ...] | str) -> BandReading:
+def decode_bands(bands: tuple[str, ...] | str, reverse: bool | None = None) -> BandReading:
     """Decode a colour code, trying both reading directions where that is ambiguous.
 
     A direction is valid when its digit, multiplier, tolerance and TCR bands are of
     colours allowed there (gold, silver and pink cannot be digits). When both
-    directions are valid, the one whose value is a member of the E series implied
-    by its tolerance band wins; otherwise the bands are read as written.
+    directions are valid and only the reversed one gives a preferred value for its
+    tolerance (see :func:`_plausible`), the reversed reading wins; otherwise the
+    bands are read as written.
 
     Parameters
     ----------
     bands
         Canonical colour names, or band text for :func:`parse_bands`.
+    reverse
+        None to choose the direction as above; False to read only as written;
+        True to read only from the other end.
 
     Returns
     -------
@@ -264,8 +273,12 @@ def decode_bands(bands: tuple[str, ...] | str) -> BandReading:
         bands = parse_bands(bands)
     elif not 3 <= len(bands) <= 6:
         raise MarkingError(f"{text!r} is not a colour code: expected 3 to 6 bands")
-    forward = _read(tuple(bands))
-    backward = _read(tuple(reversed(bands)))
+    forward = _read(tuple(bands)) if reverse is not True else "not read as written"
+    backward = _read(tuple(reversed(bands))) if reverse is not False else "not turned round"
+    if reverse is not None:
+        reading = backward if reverse else forward
+        if isinstance(reading, str):
+            raise MarkingError(f"{text!r} is not a valid colour code: {reading}")
     if isinstance(backward, BandReading):
         backward = BandReading(
             backward.significand,
@@ -283,7 +296,9 @@ def decode_bands(bands: tuple[str, ...] | str) -> BandReading:
         return forward
     if isinstance(backward, BandReading):
         return backward
-    raise MarkingError(f"{text!r} is not a valid colour code: {forward}, in either direction")
+    raise MarkingError(
+        f"{text!r} is not a valid colour code: {forward}, and turned round {backward}"
+    )
 
 
 def _colour_for_tolerance(tolerance: float) -> str | None:

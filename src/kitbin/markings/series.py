@@ -138,22 +138,24 @@ def series_values(name: str, low: float, high: float) -> list[float]:
     return out
 
 
-def is_preferred(value: float, name: str, rel_tol: float = _REL_TOL) -> bool:
-    """True when ``value`` is a member of the series, within ``rel_tol`` (relative)."""
+def is_preferred(value: float, name: str) -> bool:
+    """True when ``value`` is a member of the series, within 1 ppm (relative)."""
     table = _series(name)
     _check_positive(value)
     below, above = _neighbours(value, table)
-    return min(abs(value / below - 1), abs(above / value - 1)) <= rel_tol
+    return below == above
 
 
 def _neighbours(value: float, table: tuple[float, ...]) -> tuple[float, float]:
+    """``(below, above)``; a value within 1 ppm of a member gets that member twice."""
     mantissa, exponent = _decade(value)
-    i = bisect_left(table, mantissa * (1 - 1e-12))
-    if i < len(table) and abs(table[i] / mantissa - 1) <= 1e-12:
-        v = _scaled(table[i], exponent)
-        return v, v
-    below = _scaled(table[i - 1], exponent) if i > 0 else _scaled(table[-1], exponent - 1)
-    above = _scaled(table[i], exponent) if i < len(table) else _scaled(table[0], exponent + 1)
+    i = bisect_left(table, mantissa)
+    below = _scaled(*((table[i - 1], exponent) if i > 0 else (table[-1], exponent - 1)))
+    above = _scaled(*((table[i], exponent) if i < len(table) else (table[0], exponent + 1)))
+    if abs(above / value - 1) <= _REL_TOL:
+        return above, above
+    if abs(value / below - 1) <= _REL_TOL:
+        return below, below
     return below, above
 
 
@@ -180,10 +182,10 @@ def nearest_preferred(value: float, name: str) -> float:
 
 
 def series_containing(value: float) -> str | None:
-    """The smallest E series (E3 first … E192) that has ``value``, or None."""
+    """The smallest E series (E3 first … E192) that has ``value`` (within 1 ppm), or None."""
     _check_positive(value)
     for name, table in SERIES.items():
         below, above = _neighbours(value, table)
-        if min(abs(value / below - 1), abs(above / value - 1)) <= _REL_TOL:
+        if below == above:
             return name
     return None
