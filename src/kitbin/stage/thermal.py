@@ -26,12 +26,12 @@ def r_at(r_ref: float, t_ref: float, t: float, alpha20: float = ALPHA_CU_20) -> 
     return r20 * (1 + alpha20 * (t - 20.0))
 
 
-def winding_temperature(r_cold: float, t_cold: float, r_hot: float) -> float:
-    """Winding temperature (°C) from its resistance rise, with α20 of IEC 60028.
+def winding_temperature(r_cold: float, t_cold: float, r_hot: float, k: float = 234.5) -> float:
+    """Winding temperature (°C) from its resistance rise: T2 = (R2/R1)(k + T1) − k.
 
-    Same as T2 = (R2/R1)(1/α20 − 20 + T1) − (1/α20 − 20), i.e. the 234.5 °C rule.
+    k = 234.5 °C, the inferred zero-resistance temperature of annealed copper
+    (REFERENCES section 5; 1/α20 − 20 = 234.45 with IEC 60028's α20).
     """
-    k = 1 / ALPHA_CU_20 - 20.0
     return r_hot / r_cold * (k + t_cold) - k
 
 
