@@ -46,7 +46,11 @@ def driver_message(error: BaseException, url: str = "") -> str:
     line = (str(orig).strip().splitlines() or [type(orig).__name__])[0]
     secret = password_of(url) if url else ""
     if secret:
-        line = line.replace(secret, "***")
+        from urllib.parse import unquote
+
+        # The driver sees the password %-decoded; scrub both spellings.
+        for spelling in sorted({secret, unquote(secret)}, key=len, reverse=True):
+            line = line.replace(spelling, "***")
     return line
 
 
@@ -61,6 +65,13 @@ def make_engine(url: str, *, foreign_keys: bool = True) -> Engine:
         SQLite only: enforce foreign keys. Migrations turn this off, because a
         batch table rebuild drops and recreates tables that others refer to.
     """
+    netloc = url.split("://", 1)[-1].split("/", 1)[0]
+    if not url.startswith("sqlite") and netloc.count("@") > 1:
+        # The driver would take part of the password for the host name and echo it.
+        raise StoreError(
+            f"cannot use database {mask_url(url)}: more than one '@' before the host",
+            "write an '@' inside a user name or password as %40",
+        )
     try:
         if url.startswith("sqlite"):
             return _sqlite_engine(url, foreign_keys=foreign_keys)
@@ -327,3 +338,52 @@ def open_store(url: str | None = None, *, create: bool = True) -> Store:
             f"({head}); run `kitbin init` to upgrade it"
         )
     return Store(resolved, engine)
+
+
+def has_data(url: str | None = None) -> bool:
+    """True when the database exists and holds any table (kitbin's or not)."""
+    resolved = resolve_url(url)
+    path = sqlite_path(resolved)
+    if path is not None and (not path.exists() or path.stat().st_size == 0):
+        return False
+    engine = make_engine(resolved)
+    try:
+        with engine.connect() as conn:
+            return bool(inspect(conn).get_table_names())
+    except SQLAlchemyError as e:
+        raise StoreError(
+            f"cannot open database {mask_url(resolved)}: {driver_message(e, resolved)}"
+        ) from e
+    finally:
+        engine.dispose()
+
+
+def reset_database(url: str | None = None) -> None:
+    """Remove everything: delete a SQLite file, or drop every table of another database.
+
+    Only for the demo's own file or a database the user named with ``--force``.
+    """
+    resolved = resolve_url(url)
+    path = sqlite_path(resolved)
+    if path is not None:
+        for suffix in ("", "-wal", "-shm", "-journal"):
+            candidate = path.with_name(path.name + suffix)
+            try:
+                candidate.unlink(missing_ok=True)
+            except OSError as e:
+                raise StoreError(f"cannot remove {candidate}: {e.strerror}") from e
+        return
+    from sqlalchemy import MetaData
+
+    engine = make_engine(resolved)
+    try:
+        with engine.begin() as conn:
+            meta = MetaData()
+            meta.reflect(conn)
+            meta.drop_all(conn)
+    except SQLAlchemyError as e:
+        raise StoreError(
+            f"cannot reset database {mask_url(resolved)}: {driver_message(e, resolved)}"
+        ) from e
+    finally:
+        engine.dispose()
