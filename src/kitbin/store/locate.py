@@ -14,8 +14,9 @@ DEFAULT_FILE = "kitbin.sqlite"
 DEMO_FILE = "demo.sqlite"
 
 _SCHEME = re.compile(r"^[A-Za-z][A-Za-z0-9+.\-]*://")
-# user:password@ in a URL; the password part is what must never be shown.
-_PASSWORD = re.compile(r"^([A-Za-z][A-Za-z0-9+.\-]*://[^:/@]*):([^@]*)@")
+# user:password@ in a URL; the password part is what must never be shown. It runs to
+# the last "@", so an unescaped "@" inside a password is hidden too.
+_PASSWORD = re.compile(r"^([A-Za-z][A-Za-z0-9+.\-]*://[^:/@]*):(.*)@(?=[^@]*$)")
 
 
 def data_dir() -> Path:
