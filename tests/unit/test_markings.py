@@ -7,6 +7,10 @@ project's own rules (scheme choice, reading direction, normalised text, errors).
 
 from __future__ import annotations
 
+import doctest
+import re
+from pathlib import Path
+
 import pytest
 
 from kitbin.errors import KitbinError, MarkingError
@@ -424,3 +428,27 @@ def test_bad_series_arguments() -> None:
         is_preferred(-1.0, "E24")
     with pytest.raises(MarkingError, match="empty"):
         series_values("E6", 10, 1)
+
+
+# -- the Python examples in docs/marking-codes.md run ------------------------------------
+
+DOC = Path(__file__).resolve().parents[2] / "docs" / "marking-codes.md"
+
+
+def test_doc_python_examples_run() -> None:
+    blocks = re.findall(r"```pycon\n(.*?)```", DOC.read_text(encoding="utf-8"), re.S)
+    assert len(blocks) >= 2
+    parser = doctest.DocTestParser()
+    runner = doctest.DocTestRunner(optionflags=doctest.ELLIPSIS)
+    for i, block in enumerate(blocks):
+        test = parser.get_doctest(block, {}, f"marking-codes.md block {i}", str(DOC), 0)
+        assert test.examples
+        result = runner.run(test)
+        assert result.failed == 0, f"block {i} of docs/marking-codes.md failed"
+
+
+def test_doc_error_line_matches_the_code() -> None:
+    text = DOC.read_text(encoding="utf-8")
+    with pytest.raises(MarkingError) as info:
+        decode_marking("brown black", "resistor")
+    assert f"kitbin: error: {info.value}" in text

@@ -6,8 +6,18 @@ from dataclasses import dataclass
 
 from kitbin.errors import MarkingError
 from kitbin.markings import codes, colour
-from kitbin.markings._numbers import UNIT_SYMBOL, format_percent, format_si, from_digits
-from kitbin.markings.tolerance import decode_tolerance_letter, encode_tolerance_letter
+from kitbin.markings._numbers import (
+    UNIT_SYMBOL,
+    format_number,
+    format_percent,
+    format_si,
+    from_digits,
+)
+from kitbin.markings.tolerance import (
+    SMALL_CAPACITOR_PF,
+    decode_tolerance_letter,
+    encode_tolerance_letter,
+)
 
 SCHEMES: tuple[str, ...] = ("colour", "numeric", "rkm", "e96")
 
@@ -67,6 +77,11 @@ class Marking:
         if self.tol_minus is None or self.tol_plus is None:
             return ""
         if abs(self.tol_minus - self.tol_plus) <= 1e-12:
+            if self.kind == "capacitor" and 0 < self.value < 10e-12:
+                # B/C/D/F on small capacitors are absolute (IEC 60062 tolerance code)
+                pf = self.tol_plus * self.value * 1e12
+                if any(abs(pf - p) <= 1e-9 for p in SMALL_CAPACITOR_PF.values()):
+                    return f"±{format_number(pf, 3)} pF"
             return f"±{format_percent(self.tol_plus)} %"
         return f"+{format_percent(self.tol_plus)}/−{format_percent(self.tol_minus)} %"
 

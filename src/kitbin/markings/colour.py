@@ -363,7 +363,7 @@ def encode_bands(
         if tol_colour is None:
             raise MarkingError(
                 f"±{tolerance * 100:g} % has no IEC 60062 tolerance colour: expected one of "
-                + ", ".join(f"±{t * 100:g} %" for t in TOLERANCE.values())
+                + ", ".join(f"±{t * 100:g} %" for t in sorted(TOLERANCE.values(), reverse=True))
             )
     if (n_bands == 6) != (tcr_ppm is not None):
         raise MarkingError("a TCR needs a 6-band code, and a 6-band code needs a TCR")
