@@ -1,0 +1,1 @@
+"""The demo workshop's bench captures (invented; see manifest.json)."""
