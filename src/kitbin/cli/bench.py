@@ -7,7 +7,7 @@ from typing import Annotated
 
 import typer
 
-from kitbin.cli.common import err_console, print_json, state
+from kitbin.cli.common import print_json, state
 from kitbin.errors import KitbinError
 
 _CAUTION = (
@@ -259,10 +259,9 @@ def _print_ramp(data: dict) -> None:
         out(f"  saved as capture {data['capture_id']} with {len(data['readings'])} readings")
     if data.get("plot"):
         out(f"  plot: {data['plot']}")
-    notes = err_console()
     for w in data["warnings"]:
-        notes.print(f"note: {w}")
-    notes.print(_CAUTION)
+        typer.echo(f"note: {w}", err=True)
+    typer.echo(_CAUTION, err=True)
 
 
 def _print_heat(data: dict) -> None:
@@ -289,4 +288,4 @@ def _print_heat(data: dict) -> None:
         out(f"  flags        {', '.join(data['flags'])}")
     if data["capture_id"] is not None:
         out(f"  saved as capture {data['capture_id']} with {len(data['readings'])} readings")
-    err_console().print(_CAUTION)
+    typer.echo(_CAUTION, err=True)
