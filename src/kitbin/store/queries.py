@@ -25,7 +25,7 @@ def bin_by_label(session: Session, label: str) -> Bin | None:
 
 def bin_ids_by_label(session: Session) -> dict[str, int]:
     """Label -> id of every bin."""
-    return dict(session.execute(select(Bin.label, Bin.id)).tuples().all())
+    return dict(session.execute(select(Bin.label, Bin.id)).all())
 
 
 def label_taken(session: Session, label: str) -> bool:
@@ -47,15 +47,13 @@ def kit_bin_counts(session: Session) -> dict[int, int]:
     """Kit id -> number of bins in it."""
     rows = session.execute(
         select(Bin.kit_id, func.count(Bin.id)).where(Bin.kit_id.is_not(None)).group_by(Bin.kit_id)
-    ).tuples()
+    )
     return {int(k): int(n) for k, n in rows}
 
 
 def reading_counts(session: Session) -> dict[int, int]:
     """Bin id -> number of readings."""
-    rows = session.execute(
-        select(Reading.bin_id, func.count(Reading.id)).group_by(Reading.bin_id)
-    ).tuples()
+    rows = session.execute(select(Reading.bin_id, func.count(Reading.id)).group_by(Reading.bin_id))
     return {int(b): int(n) for b, n in rows}
 
 
@@ -92,7 +90,7 @@ def readings(session: Session) -> Sequence[tuple[str, Reading]]:
         select(Bin.label, Reading)
         .join(Reading, Reading.bin_id == Bin.id)
         .order_by(Bin.label, Reading.id)
-    ).tuples()
+    )
     return list(rows)
 
 
