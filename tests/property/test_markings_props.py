@@ -207,6 +207,8 @@ def test_decode_raises_only_marking_error(text, kind, scheme) -> None:
         return
     assert math.isfinite(m.value) and m.value >= 0
     assert m.scheme in ("colour", "numeric", "rkm", "e96")
+    if scheme is not None:
+        assert m.scheme == scheme  # a forced scheme is kept or refused, never swapped
     for t in (m.tol_minus, m.tol_plus):
         assert t is None or t >= 0
     assert m.describe()

@@ -221,6 +221,9 @@ def test_forced_scheme() -> None:
     assert m.value == pytest.approx(100e-9)
     assert (m.tol_minus, m.tol_plus) == (0.0, 1.0)
     assert decode_marking("68R", "resistor", scheme="e96").value == pytest.approx(4.99)
+    for text, scheme in (("47KJ", "numeric"), ("4K7", "e96"), ("472", "rkm"), ("4.7k", "e96")):
+        with pytest.raises(MarkingError, match=r"not an? .* code"):
+            decode_marking(text, "resistor", scheme=scheme)
     with pytest.raises(MarkingError, match="not a marking scheme"):
         decode_marking("104", "capacitor", scheme="morse")
 

@@ -64,7 +64,7 @@ class Marking:
     tcr_ppm: float | None
     scheme: str
     text: str
-    kind: str = "resistor"
+    kind: str
     reversed: bool = False
 
     @property

@@ -263,6 +263,8 @@ def decode_code(text: str, kind: str, scheme: str | None = None) -> CodeReading:
         raise MarkingError(f"{original!r} has no digits: expected a code such as 4K7 or 104")
     if tol:
         # digits, multiplier letter, tolerance letter: 47KJ, 470RF
+        if scheme not in (None, "rkm"):
+            raise MarkingError(f"{original!r} is an RKM code, not {a(str(scheme))} code")
         if letter not in rkm_letters:
             raise MarkingError(
                 f"{original!r} is not {a(kind)} marking: expected at most one letter after "
