@@ -326,9 +326,12 @@ def open_store(url: str | None = None, *, create: bool = True) -> Store:
             raise StoreError(
                 f"the database {mask_url(resolved)} is empty", "run `kitbin init` to create it"
             )
-        engine.dispose()
-        init_database(resolved)
-        engine = make_engine(resolved)
+        if resolved.startswith("sqlite") and path is None:
+            _upgrade(engine, resolved)  # in memory: a second engine would see another database
+        else:
+            engine.dispose()
+            init_database(resolved)
+            engine = make_engine(resolved)
     elif revision != head:
         engine.dispose()
         if not _is_known(revision):
