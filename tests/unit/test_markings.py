@@ -179,6 +179,9 @@ def test_encode_bands_refuses_what_has_no_colour(value, tolerance, kwargs, needl
         ("47KJ", "resistor", 47e3, "rkm", "47KJ", (0.05, 0.05)),
         ("4k7", "resistor", 4.7e3, "rkm", "4K7", None),
         ("4.7k", "resistor", 4.7e3, "rkm", "4K7", None),
+        ("4,7k", "resistor", 4.7e3, "rkm", "4K7", None),
+        ("10 µH", "inductor", 10e-6, "rkm", "10U", None),
+        ("100nF", "capacitor", 100e-9, "rkm", "100n", None),
         ("4K7 ohm", "resistor", 4.7e3, "rkm", "4K7", None),
         ("10uF", "capacitor", 10e-6, "rkm", "10u", None),
         ("4.7µH", "inductor", 4.7e-6, "rkm", "4U7", None),
@@ -419,6 +422,8 @@ def test_nearest_is_by_ratio() -> None:
 def test_membership_tolerates_float_noise() -> None:
     assert is_preferred(4.7e-6 * (1 + 1e-9), "E12")
     assert not is_preferred(4.8e-6, "E12")
+    assert is_preferred(4.75e-6, "E12", rel_tol=0.02)
+    assert not is_preferred(4.7e-6 * 1.00001, "E12")
     assert series_containing(0.0047) == "E3"
     assert series_containing(49.9) == "E96"
     assert series_containing(4.8) is None

@@ -125,7 +125,8 @@ def check_kind(kind: str) -> str:
 
 def _compact(text: str, kind: str) -> str:
     # replace the micro signs before upper(), which would turn them into a Greek capital
-    s = re.sub(r"\s+", "", text).replace("µ", "u").replace("μ", "u").upper()
+    # and take a decimal comma (4,7k) as a decimal point
+    s = re.sub(r"\s+", "", text).replace("µ", "u").replace("μ", "u").replace(",", ".").upper()
     return _UNIT_SUFFIX[kind].sub("", s)
 
 

@@ -138,23 +138,25 @@ def series_values(name: str, low: float, high: float) -> list[float]:
     return out
 
 
-def is_preferred(value: float, name: str) -> bool:
-    """True when ``value`` is a member of the series, within 1 ppm (relative)."""
+def is_preferred(value: float, name: str, rel_tol: float = _REL_TOL) -> bool:
+    """True when ``value`` is a member of the series, within ``rel_tol`` (default 1 ppm)."""
     table = _series(name)
     _check_positive(value)
-    below, above = _neighbours(value, table)
+    below, above = _neighbours(value, table, rel_tol)
     return below == above
 
 
-def _neighbours(value: float, table: tuple[float, ...]) -> tuple[float, float]:
-    """``(below, above)``; a value within 1 ppm of a member gets that member twice."""
+def _neighbours(
+    value: float, table: tuple[float, ...], rel_tol: float = _REL_TOL
+) -> tuple[float, float]:
+    """``(below, above)``; a value within ``rel_tol`` of a member gets that member twice."""
     mantissa, exponent = _decade(value)
     i = bisect_left(table, mantissa)
     below = _scaled(*((table[i - 1], exponent) if i > 0 else (table[-1], exponent - 1)))
     above = _scaled(*((table[i], exponent) if i < len(table) else (table[0], exponent + 1)))
-    if abs(above / value - 1) <= _REL_TOL:
+    if abs(above / value - 1) <= rel_tol:
         return above, above
-    if abs(value / below - 1) <= _REL_TOL:
+    if abs(value / below - 1) <= rel_tol:
         return below, below
     return below, above
 
