@@ -1,0 +1,550 @@
+"""Matching a saved plan against the stock: load evidence in bulk, judge, rank.
+
+Used by ``kitbin match``, ``kitbin pick`` and the terminal UI. Evidence is loaded
+with a few set-based queries (bins of the roles' kinds, readings and properties of
+only the quantities the demands read, stored L(i) curves), turned into numpy
+evidence tables, and judged for every candidate at once
+(:mod:`kitbin.match.verdicts`). Only the rows shown are turned into objects.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from kitbin.errors import KitbinError, NotFoundError, SpecError
+from kitbin.match.divider import DividerResult, StockResistor, best_divider
+from kitbin.match.evidence import GRADES, grade_of_source
+from kitbin.match.evidence_table import EvidenceTable, evidence_table
+from kitbin.match.ranking import RankedRow, rank, status_counts
+from kitbin.match.verdicts import (
+    Candidates,
+    Check,
+    RoleVerdicts,
+    generic_verdicts,
+    inductor_verdicts,
+    kinds_for,
+    quantities_for,
+)
+from kitbin.quantities import NOMINAL_QUANTITY, QUANTITIES
+from kitbin.store import matchreads as bulk
+
+if TYPE_CHECKING:
+    from sqlalchemy.orm import Session
+
+    from kitbin.stage.demands import Demand
+    from kitbin.stage.spec import Spec
+    from kitbin.store import Store
+
+#: Roles judged bin by bin (the feedback divider is a search over pairs instead).
+DIVIDER_ROLE = "feedback_divider"
+
+
+@dataclass
+class Stock:
+    """The bins of some kinds with their evidence tables (rows in id order)."""
+
+    ids: np.ndarray
+    labels: tuple[str, ...]
+    kinds: np.ndarray
+    nominal: np.ndarray
+    available: np.ndarray
+    tables: dict[str, EvidenceTable]
+    curves: dict[int, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+
+    def subset(self, kinds: Sequence[str]) -> tuple[np.ndarray, Candidates]:
+        """Rows of the given kinds, as :class:`Candidates` (and their row indices)."""
+        rows = np.flatnonzero(np.isin(self.kinds, list(kinds)))
+        if rows.size == self.ids.size:
+            return rows, Candidates(self.labels, self.available, self.tables, self.curves)
+        pos = {int(r): i for i, r in enumerate(rows)}
+        tables = {q: _take(t, rows) for q, t in self.tables.items()}
+        curves = {pos[r]: c for r, c in self.curves.items() if r in pos}
+        labels = tuple(self.labels[int(r)] for r in rows)
+        return rows, Candidates(labels, self.available[rows], tables, curves)
+
+
+def _take(t: EvidenceTable, rows: np.ndarray) -> EvidenceTable:
+    from dataclasses import replace
+
+    return replace(
+        t,
+        grade=t.grade[rows],
+        low=t.low[rows],
+        high=t.high[rows],
+        closed_low=t.closed_low[rows],
+        closed_high=t.closed_high[rows],
+        max_low=t.max_low[rows],
+        mean=t.mean[rows],
+        spread=t.spread[rows],
+        n=t.n[rows],
+        lower_bound_only=t.lower_bound_only[rows],
+    )
+
+
+def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]) -> Stock:
+    """Bins of ``kinds`` with evidence tables for ``quantities`` (three or four queries).
+
+    Readings give ``measured``; the bin's nominal and tolerance give ``marked`` for
+    the quantity its marking describes (inductance, resistance, capacitance);
+    properties count by their source (:func:`kitbin.match.evidence.grade_of_source`),
+    with a property ``<name>_tol`` as the tolerance of ``<name>``.
+    """
+    kinds = tuple(dict.fromkeys(kinds))
+    quantities = tuple(q for q in dict.fromkeys(quantities) if q in QUANTITIES)
+    ids, labels, kind, nominal, tol_m, tol_p, qty, reserved = bulk.candidate_bins(session, kinds)
+    ids_a = np.asarray(ids, dtype=np.int64)
+    n = ids_a.size
+    kind_a = np.asarray(kind, dtype=object) if n else np.empty(0, dtype=object)
+    nom = _floats(nominal, n)
+    tm = _floats(tol_m, n)
+    tp = _floats(tol_p, n)
+    avail = np.asarray(qty, dtype=np.int64) - np.asarray(reserved, dtype=np.int64)
+    if n == 0:
+        avail = np.zeros(0, dtype=np.int64)
+
+    r_bin, r_q, r_val, r_bound = bulk.reading_rows(session, kinds, quantities) if n else ((),) * 4
+    r_row = np.searchsorted(ids_a, np.asarray(r_bin, dtype=np.int64))
+    r_q_a = np.asarray(r_q, dtype=object)
+    r_val_a = np.asarray(r_val, dtype=float)
+    r_bnd_a = np.asarray(r_bound, dtype=object) == ">="
+
+    names = quantities + tuple(f"{q}_tol" for q in quantities if f"{q}_tol" in QUANTITIES)
+    p_bin, p_name, p_val, p_src = bulk.property_rows(session, kinds, names) if n else ((),) * 4
+    p_row = np.searchsorted(ids_a, np.asarray(p_bin, dtype=np.int64))
+    p_name_a = np.asarray(p_name, dtype=object)
+    p_val_a = np.asarray(p_val, dtype=float)
+    grade_cache: dict[str, int] = {}
+    p_grade = np.array(
+        [grade_cache.setdefault(s, GRADES.index(grade_of_source(s))) for s in p_src],
+        dtype=np.int8,
+    )
+
+    nominal_q = np.array([NOMINAL_QUANTITY.get(k, "") for k in kind_a], dtype=object)
+    tables: dict[str, EvidenceTable] = {}
+    for q in quantities:
+        rm = r_q_a == q
+        pm = p_name_a == q
+        tol_q = f"{q}_tol"
+        prop_tol = np.zeros(int(pm.sum()))
+        tm_mask = p_name_a == tol_q
+        if tm_mask.any() and pm.any():
+            tol_by_row = dict(zip(p_row[tm_mask].tolist(), p_val_a[tm_mask].tolist(), strict=True))
+            prop_tol = np.array([tol_by_row.get(int(r), 0.0) for r in p_row[pm]])
+        has_nominal = nominal_q == q
+        tables[q] = evidence_table(
+            q,
+            n,
+            reading_row=r_row[rm],
+            reading_value=r_val_a[rm],
+            reading_bound=r_bnd_a[rm],
+            nominal=np.where(has_nominal, nom, np.nan) if has_nominal.any() else None,
+            tol_minus=tm,
+            tol_plus=tp,
+            prop_row=p_row[pm],
+            prop_value=p_val_a[pm],
+            prop_grade=p_grade[pm],
+            prop_tol=prop_tol,
+        )
+    curves: dict[int, tuple[np.ndarray, np.ndarray]] = {}
+    if "inductor" in kinds and n:
+        for bin_id, curve in bulk.curve_rows(session, ["inductor"]):
+            parsed = _curve(curve)
+            if parsed is not None:
+                curves[int(np.searchsorted(ids_a, bin_id))] = parsed
+    return Stock(ids_a, tuple(labels), kind_a, nom, avail, tables, curves)
+
+
+def _floats(values: Sequence[Any], n: int) -> np.ndarray:
+    if n == 0:
+        return np.zeros(0)
+    return np.array([np.nan if v is None else float(v) for v in values], dtype=float)
+
+
+def _curve(data: Any) -> tuple[np.ndarray, np.ndarray] | None:
+    """(currents, inductances) from a stored curve ({"i_A", "L_H"} or {"i", "l"})."""
+    if not isinstance(data, dict):
+        return None
+    for ki, kl in (("i_A", "L_H"), ("i", "l"), ("current", "inductance")):
+        if ki in data and kl in data:
+            i = np.asarray(data[ki], dtype=float)
+            lv = np.asarray(data[kl], dtype=float)
+            ok = np.isfinite(i) & np.isfinite(lv) & (lv > 0)
+            if ok.sum() >= 2 and i.shape == lv.shape:
+                return i[ok], lv[ok]
+    return None
+
+
+# -- plans ------------------------------------------------------------------------------
+
+
+def load_plan(session: Session, name: str) -> tuple[int, str, Spec]:
+    """(id, name, spec) of a saved plan.
+
+    Raises
+    ------
+    NotFoundError
+        When there is no plan of that name.
+    """
+    from kitbin.stage.spec import spec_from_dict
+
+    plan = bulk.plan_by_name(session, name)
+    if plan is None:
+        raise NotFoundError(f"no plan named {name!r}", "see `kitbin plan list`")
+    try:
+        spec = spec_from_dict(dict(plan.spec or {}))
+    except SpecError as error:
+        raise SpecError(f"plan {plan.name!r} is not a valid spec: {error}") from None
+    return plan.id, plan.name, spec
+
+
+# -- results ----------------------------------------------------------------------------
+
+
+@dataclass
+class RoleMatch:
+    """Ranked candidates of one role."""
+
+    role: str
+    kinds: tuple[str, ...]
+    rows: list[RankedRow]
+    counts: dict[str, int]
+    notes: tuple[str, ...]
+    verdicts: RoleVerdicts
+    bin_ids: np.ndarray
+
+    @property
+    def best(self) -> RankedRow | None:
+        """The top row, or None when the role has no candidates."""
+        return self.rows[0] if self.rows else None
+
+
+@dataclass
+class DividerMatch:
+    """The feedback divider chosen from stock, with its checks."""
+
+    result: DividerResult | None
+    checks: tuple[Check, ...]
+    verdict: str
+    note: str
+    vref: float | None
+    stock: tuple[StockResistor, ...] = ()
+
+
+@dataclass
+class MatchResult:
+    """Everything ``kitbin match`` shows."""
+
+    plan_id: int
+    plan: str
+    spec: Spec
+    roles: dict[str, RoleMatch]
+    divider: DividerMatch | None
+    notes: tuple[str, ...] = ()
+
+
+def match_plan(
+    store: Store,
+    plan: str,
+    *,
+    role: str | None = None,
+    top: int | None = 5,
+    boards: int = 1,
+) -> MatchResult:
+    """Rank the stock for every role of a plan (or one role).
+
+    Parameters
+    ----------
+    store
+        The open inventory.
+    plan
+        Plan name.
+    role
+        Only this role (``inductor``, ``output_capacitor``, ``feedback_divider`` ...).
+    top
+        Rows to keep per role (None: all).
+    boards
+        Boards to be built: stock must hold this many parts per board.
+
+    Raises
+    ------
+    NotFoundError
+        Unknown plan or role.
+    """
+    from kitbin.stage.demands import demands
+
+    if boards < 1:
+        raise KitbinError(f"boards {boards}: expected 1 or more")
+    if top is not None and top < 1:
+        raise KitbinError(f"--top {top}: expected 1 or more")
+    with store.transaction() as session:
+        plan_id, plan_name, spec = load_plan(session, plan)
+        all_demands = demands(spec)
+        wanted = [d for d in all_demands if role is None or d.role == role]
+        if role is not None and not wanted:
+            roles = ", ".join(d.role for d in all_demands)
+            raise NotFoundError(f"plan {plan_name!r} has no role {role!r}", f"roles: {roles}")
+        kinds: list[str] = []
+        quantities: list[str] = []
+        for d in wanted:
+            kinds += kinds_for(d.role, d)
+            quantities += quantities_for(d.role, d, spec)
+            if d.role == DIVIDER_ROLE:
+                quantities.append("resistance")
+        stock = load_stock(session, kinds, quantities)
+    roles: dict[str, RoleMatch] = {}
+    divider = None
+    for d in wanted:
+        if d.role == DIVIDER_ROLE:
+            _, cands = stock.subset(kinds_for(d.role, d))
+            divider = choose_divider(spec, d, cands, boards=boards)
+            continue
+        roles[d.role] = judge_role(spec, d, stock, top=top, boards=boards)
+    return MatchResult(plan_id, plan_name, spec, roles, divider)
+
+
+def judge_role(
+    spec: Spec, demand: Demand, stock: Stock, *, top: int | None, boards: int
+) -> RoleMatch:
+    """Judge and rank one role's candidates."""
+    kinds = kinds_for(demand.role, demand)
+    rows_idx, cands = stock.subset(kinds)
+    if demand.role == "inductor":
+        rv = inductor_verdicts(spec, demand, cands, per_board=boards)
+    else:
+        rv = generic_verdicts(demand, cands, per_board=boards)
+    ranked = rank(rv, spec, top=top, needed=boards)
+    return RoleMatch(
+        demand.role,
+        kinds,
+        ranked,
+        status_counts(rv),
+        demand.notes,
+        rv,
+        stock.ids[rows_idx],
+    )
+
+
+def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int) -> DividerMatch:
+    """The best stocked feedback divider for the plan, single resistors first.
+
+    A divider of two single resistors is taken when its worst-case band meets the
+    demand; otherwise legs of two resistors in series or in parallel are searched
+    too and the better of the two is taken.
+    """
+    from kitbin.match.ranking import VERDICTS
+    from kitbin.stage.demands import divider_window
+
+    if spec.vref is None:
+        note = "controller reference voltage unknown: no divider searched (give the plan a vref)"
+        return DividerMatch(None, (), "fails", note, None)
+    t = cands.tables.get("resistance")
+    stock: list[StockResistor] = []
+    if t is not None:
+        typ = t.typical()
+        for k, label in enumerate(cands.labels):
+            lo, hi, v = float(t.low[k]), float(t.high[k]), float(typ[k])
+            if (
+                t.grade[k] == GRADES.index("unknown")
+                or not (lo > 0 and math.isfinite(hi) and v > 0)
+                or cands.available[k] < boards
+            ):
+                continue
+            stock.append(
+                StockResistor(label, v, lo, hi, int(cands.available[k]), GRADES[t.grade[k]])
+            )
+    tol = spec.vref_tol or 0.0
+    ifb = spec.ifb or 0.0
+    kw = {"vref_tol": tol, "ifb": ifb, "boards": boards}
+    lo_ratio, hi_ratio, _share = divider_window(spec)
+    best = best_divider(stock, spec.vref, spec.vout, **kw)
+    checks = _divider_checks(demand, best, stock)
+    if best is None or any(c.status == "fail" for c in checks):
+        combo = best_divider(stock, spec.vref, spec.vout, connections=CONNECTIONS_ALL, **kw)
+        combo_checks = _divider_checks(demand, combo, stock)
+        if combo is not None and _better(combo_checks, checks, combo, best):
+            best, checks = combo, combo_checks
+    if best is None:
+        return DividerMatch(None, (), "fails", "no resistor in stock for the bottom leg", spec.vref)
+    group = (
+        2
+        if any(c.status == "fail" for c in checks)
+        else (1 if any(c.status == "unverified" for c in checks) else 0)
+    )
+    note = (
+        f"Rtop {best.top.describe()}, Rbot {best.bottom.describe()}: "
+        f"{best.vout:.4g} V ({best.error_pct:+.2f} %), worst case "
+        f"{best.vout_low:.4g} … {best.vout_high:.4g} V; allowed ratio "
+        f"{lo_ratio:.4g} … {hi_ratio:.4g}"
+    )
+    grades = {x.label: x.grade for x in stock}
+    marked = [p for p in (*best.top.parts, *best.bottom.parts) if grades.get(p) != "measured"]
+    if group == 2 and marked and lo_ratio <= best.top.value / best.bottom.value <= hi_ratio:
+        note += (
+            "; the nominal ratio fits but the marked tolerance does not: measure "
+            + ", ".join(dict.fromkeys(marked))
+            + " to narrow the band"
+        )
+    return DividerMatch(best, checks, VERDICTS[group], note, spec.vref, tuple(stock))
+
+
+CONNECTIONS_ALL = ("single", "series", "parallel")
+
+
+def _better(
+    a: tuple[Check, ...], b: tuple[Check, ...], ra: DividerResult, rb: DividerResult | None
+) -> bool:
+    if rb is None:
+        return True
+    fa = sum(c.status == "fail" for c in a)
+    fb = sum(c.status == "fail" for c in b)
+    if fa != fb:
+        return fa < fb
+    return _band_dev(ra) < _band_dev(rb)
+
+
+def _band_dev(r: DividerResult) -> float:
+    """Largest worst-case deviation of the output from the target (fraction)."""
+    return max(abs(r.vout_low / r.target - 1), abs(r.vout_high / r.target - 1))
+
+
+def _divider_checks(
+    demand: Demand, res: DividerResult | None, stock: Sequence[StockResistor] = ()
+) -> tuple[Check, ...]:
+    """The divider demand's constraints judged on the chosen legs' worst-case ends."""
+    from kitbin.match.evidence import weakest
+
+    if res is None:
+        return ()
+    by_label = {s.label: s.grade for s in stock}
+    grade = weakest(by_label.get(p, "unknown") for p in (*res.top.parts, *res.bottom.parts))
+    out = []
+    ratio_lo = res.top.low / res.bottom.high
+    ratio_hi = res.top.high / res.bottom.low
+    total = res.top.high + res.bottom.high
+    for c in demand.constraints:
+        if c.quantity == "divider_ratio":
+            have = ratio_lo if c.op == ">=" else ratio_hi
+        elif c.quantity == "divider_sum":
+            have = total
+        else:
+            continue
+        ok = have >= c.limit if c.op == ">=" else have <= c.limit
+        margin = c.margin(have)
+        side = " (low end)" if c.op == ">=" else " (high end)"
+        if c.quantity == "divider_sum":
+            side = ""
+        out.append(
+            Check(
+                c.quantity + side,
+                c.quantity,
+                c.op,
+                c.limit,
+                have,
+                grade,
+                "pass" if ok else "fail",
+                margin,
+                c.reason,
+                c.source,
+            )
+        )
+    return tuple(out)
+
+
+# -- JSON -------------------------------------------------------------------------------
+
+
+def _num(value: float | None) -> float | None:
+    if value is None:
+        return None
+    value = float(value)
+    return value if math.isfinite(value) else None
+
+
+def check_dict(c: Check) -> dict[str, Any]:
+    """A check as JSON: name, quantity, op, required, have, grade, status, margin, reason."""
+    return {
+        "name": c.name,
+        "quantity": c.quantity,
+        "op": c.op,
+        "required": _num(c.required),
+        "have": _num(c.have),
+        "grade": c.grade,
+        "status": c.status,
+        "margin": _num(c.margin),
+        "reason": c.reason,
+    }
+
+
+def row_dict(r: RankedRow) -> dict[str, Any]:
+    """A ranked row as JSON (keys: bin, rank, verdict, score, summary, checks, notes)."""
+    return {
+        "bin": r.label,
+        "rank": r.rank,
+        "verdict": r.verdict,
+        "score": round(r.score, 3),
+        "summary": r.summary,
+        "checks": [check_dict(c) for c in r.checks],
+        "notes": list(r.notes),
+        "figures": {k: _num(v) for k, v in r.figures},
+    }
+
+
+def divider_dict(d: DividerMatch) -> dict[str, Any]:
+    """The divider as JSON (rtop, rbottom, vout_V, error_pct, vout_band_V, ...)."""
+    if d.result is None:
+        return {
+            "rtop": None,
+            "rbottom": None,
+            "vout_V": None,
+            "error_pct": None,
+            "vout_band_V": None,
+            "verdict": d.verdict,
+            "note": d.note,
+            "checks": [],
+        }
+    r = d.result
+    return {
+        "rtop": r.top.describe(),
+        "rbottom": r.bottom.describe(),
+        "rtop_ohm": r.top.value,
+        "rbottom_ohm": r.bottom.value,
+        "vout_V": r.vout,
+        "error_pct": r.error_pct,
+        "vout_band_V": [r.vout_low, r.vout_high],
+        "vref_V": d.vref,
+        "verdict": d.verdict,
+        "note": d.note,
+        "checks": [check_dict(c) for c in d.checks],
+    }
+
+
+def match_dict(m: MatchResult) -> dict[str, Any]:
+    """The documented ``kitbin match --json`` shape."""
+    return {
+        "plan": m.plan,
+        "roles": {name: [row_dict(r) for r in rm.rows] for name, rm in m.roles.items()},
+        "counts": {name: rm.counts for name, rm in m.roles.items()},
+        "divider": divider_dict(m.divider) if m.divider is not None else None,
+    }
+
+
+__all__ = [
+    "DividerMatch",
+    "MatchResult",
+    "RoleMatch",
+    "Stock",
+    "check_dict",
+    "choose_divider",
+    "divider_dict",
+    "judge_role",
+    "load_plan",
+    "load_stock",
+    "match_dict",
+    "match_plan",
+    "row_dict",
+]
