@@ -70,6 +70,8 @@ __import__("kitbin.cli.record", fromlist=["register"]).register(app)
 __import__("kitbin.cli.transfer", fromlist=["register"]).register(app)
 __import__("kitbin.cli.bench", fromlist=["register"]).register(app)
 __import__("kitbin.cli.setup", fromlist=["register"]).register(app)
+__import__("kitbin.cli.stage", fromlist=["register"]).register(app)
+__import__("kitbin.cli.plans", fromlist=["register"]).register(app)
 # -- end of registered command modules --
 
 

@@ -627,7 +627,7 @@ def _divider(spec: Spec) -> Demand:
     nominal = spec.vout / spec.vref - 1
     why = (
         f"Vout = Vref(1 + Rtop/Rbot): {q(spec.vout, 'voltage')} from {q(spec.vref, 'voltage')} "
-        f"needs {nominal:.4g}; output within ±{spec.vout_tol * 100:g} %"
+        f"needs Rtop/Rbot = {nominal:.4g}; output within ±{spec.vout_tol * 100:g} %"
     )
     if spec.vref_tol:
         why += f" less the reference's ±{spec.vref_tol * 100:g} %"

@@ -155,6 +155,9 @@ class Spec:
         Allowed relative difference between ``fsw`` and a controller's frequency.
     extras
         Fixed parts added by the user.
+    controller
+        Label of the controller bin the plan uses (its properties filled the
+        controller fields), or None.
     """
 
     topology: str
@@ -193,6 +196,7 @@ class Spec:
     ilim_headroom: float = 1.25
     fsw_tol: float = 0.1
     extras: tuple[ExtraPart, ...] = field(default=())
+    controller: str | None = None
 
     def __post_init__(self) -> None:
         validate(self)
@@ -242,6 +246,57 @@ class Spec:
 
 SPEC_FIELDS: tuple[str, ...] = tuple(f.name for f in fields(Spec))
 
+#: Dimension (for :func:`kitbin.units.parse_quantity`) of each numeric spec field.
+FIELD_DIMENSIONS: dict[str, str] = {
+    "vin_min": "voltage",
+    "vin_max": "voltage",
+    "vout": "voltage",
+    "iout_max": "current",
+    "fsw": "frequency",
+    "iout_min": "current",
+    "vf": "voltage",
+    "r_rect": "resistance",
+    "rsw": "resistance",
+    "ripple_ratio": "ratio",
+    "vout_ripple_max": "voltage",
+    "vin_ripple_max": "voltage",
+    "t_ambient": "temperature",
+    "rise_max": "temperature_rise",
+    "isat_drop": "ratio",
+    "isat_margin": "ratio",
+    "cap_voltage_margin": "ratio",
+    "vrrm_margin": "ratio",
+    "diode_current_margin": "ratio",
+    "vout_tol": "ratio",
+    "ilim": "current",
+    "ton_min": "time",
+    "d_max": "ratio",
+    "vref": "voltage",
+    "vref_tol": "ratio",
+    "ifb": "current",
+    "ilim_gain": "voltage",
+    "ctrl_vin_min": "voltage",
+    "ctrl_vin_max": "voltage",
+    "ilim_target": "current",
+    "ilim_headroom": "ratio",
+    "fsw_tol": "ratio",
+}
+
+#: Controller bin properties (names in :mod:`kitbin.quantities`) and the spec field each fills.
+CONTROLLER_FIELDS: dict[str, str] = {
+    "vref": "vref",
+    "vref_tol": "vref_tol",
+    "ifb": "ifb",
+    "fsw": "fsw",
+    "ilim": "ilim",
+    "ilim_gain": "ilim_gain",
+    "ton_min": "ton_min",
+    "d_max": "d_max",
+    "vin_min": "ctrl_vin_min",
+    "vin_max": "ctrl_vin_max",
+    "rds_on": "rsw",
+}
+
 
 def spec_from_dict(data: dict[str, Any]) -> Spec:
     """Build a :class:`Spec` from a dict such as :meth:`Spec.to_dict` gives.
@@ -267,7 +322,9 @@ def spec_from_dict(data: dict[str, Any]) -> Spec:
     except TypeError as error:
         raise SpecError(f"extra part is malformed: {error}") from None
     for key, value in values.items():
-        if key in {"topology", "rectifier", "extras", "survive_short"} or value is None:
+        if key in {"topology", "rectifier", "extras", "survive_short", "controller"}:
+            continue
+        if value is None:
             continue
         if key == "isat_drop":
             if isinstance(value, bool) or not isinstance(value, int | float):
@@ -292,6 +349,8 @@ def validate(spec: Spec) -> None:
 
     if spec.topology not in TOPOLOGIES:
         raise SpecError(f"topology {spec.topology!r}: expected one of buck, boost, invert")
+    if spec.controller is not None and not isinstance(spec.controller, str):
+        raise SpecError(f"controller {spec.controller!r}: expected a bin label")
     if spec.rectifier not in RECTIFIERS:
         raise SpecError(f"rectifier {spec.rectifier!r}: expected diode or sync")
     for name in SPEC_FIELDS:
