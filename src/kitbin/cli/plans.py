@@ -182,7 +182,6 @@ def register(app: typer.Typer) -> None:
         if as_json:
             print_json(report)
             return
-        from kitbin.cli.common import err_console
         from kitbin.cli.stage import CAUTION, print_report
         from kitbin.units import format_quantity
 
@@ -191,7 +190,7 @@ def register(app: typer.Typer) -> None:
             f"{format_quantity(report['l_min_H'], 'H')}"
         )
         print_report(report, title)
-        err_console().print(CAUTION)
+        typer.echo(CAUTION, err=True)
 
     @plan_app.command("list")
     def list_(

@@ -179,7 +179,6 @@ def register(app: typer.Typer) -> None:
 
         Example: kitbin stage buck --vin 11..15V --vout 5.1V --iout 2.4A --fsw 500kHz --l 10uH
         """
-        from kitbin.cli.common import err_console
         from kitbin.services.plans import build_spec, parse_spec_texts
         from kitbin.stage.report import stage_report
 
@@ -214,20 +213,20 @@ def register(app: typer.Typer) -> None:
         spec = build_spec({}, fields)
         parts = _parts(l_text, dcr, cout, esr, cin, esr_in)
         report = stage_report(spec, **parts)
-        notes = err_console()
         if report["inductance_source"] == "l_min":
             from kitbin.units import format_quantity
 
-            notes.print(
+            typer.echo(
                 f"note: no --l given: using L_min = {format_quantity(report['l_min_H'], 'H')} "
                 f"from the ripple target r = {spec.ripple_ratio:g} "
-                f"(worst at {format_quantity(report['l_min_vin_V'], 'V')} input)"
+                f"(worst at {format_quantity(report['l_min_vin_V'], 'V')} input)",
+                err=True,
             )
         if as_json:
             print_json(report)
         else:
             print_report(report, f"{spec.topology} stage")
-        notes.print(CAUTION)
+        typer.echo(CAUTION, err=True)
 
 
 def _parts(
