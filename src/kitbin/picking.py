@@ -326,12 +326,18 @@ def render_text(sheet: PickSheet) -> str:
         out.append(sheet.summary)
     out.append(_status(sheet))
     out.append("")
-    cells = [list(COLUMNS)] + [line_cells(ln) for ln in sheet.lines]
-    widths = [max(len(row[i]) for row in cells) for i in range(len(COLUMNS))]
+    # the long "note" column goes below the table, one line per role
+    cols = len(COLUMNS) - 1
+    cells = [list(COLUMNS[:cols])] + [line_cells(ln)[:cols] for ln in sheet.lines]
+    widths = [max(len(row[i]) for row in cells) for i in range(cols)]
     for k, row in enumerate(cells):
         out.append("  ".join(c.ljust(w) for c, w in zip(row, widths, strict=True)).rstrip())
         if k == 0:
             out.append("  ".join("-" * w for w in widths))
+    notes = [(ln.role, ln.note) for ln in sheet.lines if ln.note]
+    if notes:
+        out += ["", "Why"]
+        out += [f"- {role}: {note}" for role, note in notes]
     out.extend(f"note: {n}" for n in sheet.extra_notes)
     if sheet.bring_up is not None:
         out += ["", "Bring-up sheet", "--------------"]

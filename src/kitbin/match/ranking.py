@@ -111,27 +111,34 @@ def rank(
     if top is not None:
         idx = idx[:top]
     group = rv.matrix.group()
-    out = []
-    for pos, k in enumerate(idx, 1):
-        k = int(k)
-        checks = rv.matrix.checks(k)
-        verdict = VERDICTS[int(group[k])]
-        figures = tuple((name, float(arr[k])) for name, arr in rv.extras.items() if arr.size > k)
-        notes = tuple(rv.row_notes.get(k, ()))
-        out.append(
-            RankedRow(
-                rank=pos,
-                row=k,
-                label=rv.candidates.labels[k],
-                verdict=verdict,
-                score=float(sc[k]),
-                checks=checks,
-                summary=explain(rv.role, verdict, checks, dict(figures), spec),
-                notes=notes,
-                figures=figures,
-            )
-        )
-    return out
+    return [_row(rv, spec, int(k), pos, sc, group) for pos, k in enumerate(idx, 1)]
+
+
+def rank_one(rv: RoleVerdicts, spec: Spec | None, k: int, *, needed: int = 1) -> RankedRow:
+    """The ranked row of candidate ``k`` (e.g. one chosen by the user), with its rank."""
+    sc = scores(rv, spec, needed)
+    idx = order(rv, sc)
+    pos = int(np.flatnonzero(idx == k)[0]) + 1
+    return _row(rv, spec, k, pos, sc, rv.matrix.group())
+
+
+def _row(
+    rv: RoleVerdicts, spec: Spec | None, k: int, pos: int, sc: np.ndarray, group: np.ndarray
+) -> RankedRow:
+    checks = rv.matrix.checks(k)
+    verdict = VERDICTS[int(group[k])]
+    figures = tuple((name, float(arr[k])) for name, arr in rv.extras.items() if arr.size > k)
+    return RankedRow(
+        rank=pos,
+        row=k,
+        label=rv.candidates.labels[k],
+        verdict=verdict,
+        score=float(sc[k]),
+        checks=checks,
+        summary=explain(rv.role, verdict, checks, dict(figures), spec),
+        notes=tuple(rv.row_notes.get(k, ())),
+        figures=figures,
+    )
 
 
 def explain(

@@ -190,13 +190,13 @@ def load_plan(session: Session, name: str) -> tuple[int, str, Spec]:
     NotFoundError
         When there is no plan of that name.
     """
-    from kitbin.stage.spec import spec_from_dict
+    from kitbin.services.plans import spec_of
 
     plan = bulk.plan_by_name(session, name)
     if plan is None:
         raise NotFoundError(f"no plan named {name!r}", "see `kitbin plan list`")
     try:
-        spec = spec_from_dict(dict(plan.spec or {}))
+        spec = spec_of(dict(plan.spec or {}))
     except SpecError as error:
         raise SpecError(f"plan {plan.name!r} is not a valid spec: {error}") from None
     return plan.id, plan.name, spec

@@ -1,0 +1,162 @@
+"""``kitbin pick PLAN`` and ``kitbin picks list|done|cancel``: pick lists and their stock."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated
+
+import typer
+
+from kitbin.cli.common import console, err_console, print_json, state
+from kitbin.errors import KitbinError
+
+FORMATS = ("text", "csv", "md", "html")
+
+
+def _write(text: str, out: Path | None) -> None:
+    if out is None:
+        typer.echo(text, nl=False)
+        return
+    try:
+        out.write_text(text, encoding="utf-8")
+    except OSError as error:
+        raise KitbinError(f"cannot write {out}: {error.strerror}") from None
+    err_console().print(f"wrote {out}")
+
+
+def register(app: typer.Typer) -> None:
+    """Add ``kitbin pick`` and the ``kitbin picks`` group to the root app."""
+
+    @app.command("pick")
+    def pick(
+        ctx: typer.Context,
+        plan: str = typer.Argument(..., help="Name of a saved plan."),
+        boards: int = typer.Option(1, "--boards", help="Number of boards.", min=1),
+        use: Annotated[
+            list[str] | None,
+            typer.Option("--use", help="Override a role's bin: ROLE=LABEL (repeatable)."),
+        ] = None,
+        fmt: str = typer.Option("text", "--format", help="text, csv, md or html."),
+        out: Annotated[Path | None, typer.Option("--out", help="Write to this file.")] = None,
+        sense: str = typer.Option(
+            "0.1ohm", "--sense", help="Sense resistor the ripple is shown across."
+        ),
+        do_reserve: bool = typer.Option(
+            False, "--reserve", help="Store the pick list and hold its stock."
+        ),
+    ) -> None:
+        """Print a pick list with its bring-up sheet; optionally reserve the parts.
+
+        Example: kitbin pick bench-5v --boards 3 --format html --out pick.html --reserve
+        """
+        from kitbin.picking import render
+        from kitbin.services import picking
+        from kitbin.store import open_store
+        from kitbin.units import parse_quantity
+
+        if fmt not in FORMATS:
+            raise KitbinError(f"--format {fmt!r}: expected one of {', '.join(FORMATS)}")
+        r_sense = parse_quantity(sense, "resistance")
+        choices = picking.parse_use(use or [])
+        with open_store(state(ctx).db) as store:
+            sheet, chosen, m = picking.build_sheet(
+                store, plan, boards=boards, use=choices, sense=r_sense
+            )
+            if do_reserve:
+                from dataclasses import replace
+
+                pick_id = picking.reserve_sheet(store, sheet, chosen, m.plan_id)
+                lines = tuple(replace(ln, held_by_this=ln.qty_total) for ln in sheet.lines)
+                lines = tuple(replace(ln, reserved=ln.reserved + ln.qty_total) for ln in lines)
+                sheet = replace(sheet, pick_id=pick_id, state="reserved", lines=lines)
+        _write(render(sheet, fmt), out)
+        if do_reserve:
+            err_console().print(
+                f"pick list {sheet.pick_id} reserved; take the parts with "
+                f"`kitbin picks done {sheet.pick_id}` or release them with "
+                f"`kitbin picks cancel {sheet.pick_id}`"
+            )
+
+    picks_app = typer.Typer(help="Stored pick lists: list, take, release.", no_args_is_help=True)
+
+    @picks_app.command("list")
+    def picks_list(
+        ctx: typer.Context,
+        only: str | None = typer.Option(None, "--state", help="reserved, picked or cancelled."),
+        as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+    ) -> None:
+        """List stored pick lists, newest first.
+
+        Example: kitbin picks list --state reserved
+        """
+        from kitbin.services import picking
+        from kitbin.store import open_store
+
+        with open_store(state(ctx).db) as store:
+            rows = picking.list_picks(store, only)
+        if as_json:
+            print_json(rows)
+            return
+        from rich.markup import escape
+        from rich.table import Table
+
+        table = Table(title="pick lists", title_justify="left")
+        for col in ("id", "plan", "boards", "state", "created", "lines"):
+            table.add_column(col)
+        for r in rows:
+            lines = ", ".join(f"{ln['role']} {ln['bin']}×{ln['total']}" for ln in r["lines"])
+            table.add_row(
+                str(r["id"]),
+                escape(r["plan"]),
+                str(r["boards"]),
+                r["state"],
+                (r["created_at"] or "")[:16],
+                escape(lines),
+            )
+        console().print(table)
+
+    @picks_app.command("done")
+    def picks_done(
+        ctx: typer.Context,
+        pick_id: int = typer.Argument(..., help="Pick list id (see `kitbin picks list`)."),
+        as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+    ) -> None:
+        """Take a reserved pick list's parts out of stock (state becomes picked).
+
+        Example: kitbin picks done 3
+        """
+        from kitbin.services import picking
+        from kitbin.store import open_store
+
+        with open_store(state(ctx).db) as store:
+            result = picking.take(store, pick_id)
+        if as_json:
+            print_json(result)
+            return
+        for mv in result["moves"]:
+            typer.echo(f"{mv['bin']}: {mv['delta']:+d}, {mv['qty_after']} left")
+        typer.echo(f"pick list {pick_id} picked")
+
+    @picks_app.command("cancel")
+    def picks_cancel(
+        ctx: typer.Context,
+        pick_id: int = typer.Argument(..., help="Pick list id (see `kitbin picks list`)."),
+        as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+    ) -> None:
+        """Release a reserved pick list's parts (state becomes cancelled).
+
+        Example: kitbin picks cancel 3
+        """
+        from kitbin.services import picking
+        from kitbin.store import open_store
+
+        with open_store(state(ctx).db) as store:
+            result = picking.cancel(store, pick_id)
+        if as_json:
+            print_json(result)
+            return
+        for r in result["released"]:
+            typer.echo(f"{r['bin']}: released {r['released']}")
+        typer.echo(f"pick list {pick_id} cancelled")
+
+    app.add_typer(picks_app, name="picks")

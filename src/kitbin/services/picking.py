@@ -1,0 +1,556 @@
+"""Pick lists: choose a bin per role, reserve the stock, take it or give it back.
+
+``kitbin pick PLAN`` builds a :class:`kitbin.picking.PickSheet` from the matcher
+(the top verified bin per role unless ``--use ROLE=LABEL`` says otherwise) and a
+bring-up sheet from the power stage with the chosen parts. With ``--reserve`` the
+pick list is stored in state ``reserved`` and each bin's ``qty_reserved`` goes up,
+all in one transaction. ``kitbin picks done ID`` takes the parts (state ``picked``,
+one logged stock move per line carrying the pick list id) and ``kitbin picks cancel
+ID`` releases them (state ``cancelled``), each in one transaction through the
+store's conditional-update stock functions, so two benches picking at once can
+neither lose a move nor take a list twice.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Any
+
+import numpy as np
+
+from kitbin.errors import KitbinError, NotFoundError, StockError
+from kitbin.picking import (
+    BringUpSheet,
+    CornerExpectation,
+    PickLine,
+    PickSheet,
+    describe_part,
+    recognise,
+)
+from kitbin.services.matching import (
+    DIVIDER_ROLE,
+    DividerMatch,
+    MatchResult,
+    RoleMatch,
+    match_plan,
+)
+from kitbin.store import matchreads
+
+if TYPE_CHECKING:
+    from kitbin.stage.spec import Spec
+    from kitbin.store import Store
+
+#: Sense resistor the bring-up ripple is shown across when none is given, Ω
+#: (a common shunt for small converters; common practice, no source).
+DEFAULT_SENSE = 0.1
+DIVIDER_LINES = ("divider_top", "divider_bottom")
+
+
+@dataclass
+class Chosen:
+    """The bin chosen for one pick line (before the display fields are loaded)."""
+
+    role: str
+    bin_id: int | None
+    label: str | None
+    per_board: int
+    verdict: str
+    note: str
+    figures: dict[str, float] = field(default_factory=dict)
+
+
+def parse_use(items: Sequence[str]) -> dict[str, str]:
+    """``ROLE=LABEL`` items as a dict.
+
+    Raises
+    ------
+    KitbinError
+        For an item without ``=``.
+    """
+    out: dict[str, str] = {}
+    for item in items:
+        role, sep, label = item.partition("=")
+        if not sep or not role.strip() or not label.strip():
+            raise KitbinError(f"--use {item!r}: expected ROLE=LABEL, e.g. inductor=L-07")
+        out[role.strip()] = label.strip()
+    return out
+
+
+def _row_of(rm: RoleMatch, label: str) -> int | None:
+    labels = rm.verdicts.candidates.labels
+    key = label.lower()
+    for k, lab in enumerate(labels):
+        if lab == label:
+            return k
+    for k, lab in enumerate(labels):
+        if lab.lower() == key:
+            return k
+    return None
+
+
+def _choose_role(rm: RoleMatch, spec: Spec, use: Mapping[str, str], boards: int) -> Chosen:
+    from kitbin.match.ranking import VERDICTS, rank_one
+
+    wanted = use.get(rm.role)
+    if wanted is None and rm.role == "controller" and getattr(spec, "controller", None):
+        wanted = spec.controller
+        via = "the plan's controller"
+    else:
+        via = "--use"
+    if wanted is not None:
+        k = _row_of(rm, wanted)
+        if k is None:
+            raise NotFoundError(
+                f"bin {wanted!r} is not a candidate for role {rm.role!r}",
+                f"it must be a stocked {' or '.join(rm.kinds)} bin",
+            )
+        row = rank_one(rm.verdicts, spec, k, needed=boards)
+        return Chosen(
+            rm.role,
+            int(rm.bin_ids[k]),
+            row.label,
+            1,
+            row.verdict,
+            f"chosen by {via}: {row.verdict}; {row.summary}",
+            dict(row.figures),
+        )
+    best = rm.best
+    if best is None:
+        return Chosen(rm.role, None, None, 1, "none", "no stocked bin of this kind")
+    if best.verdict == VERDICTS[2]:
+        return Chosen(
+            rm.role,
+            None,
+            None,
+            1,
+            "none",
+            f"nothing in stock passes; best was {best.label} ({best.summary}); "
+            f"force it with --use {rm.role}={best.label}",
+        )
+    total = sum(rm.counts.values())
+    return Chosen(
+        rm.role,
+        int(rm.bin_ids[best.row]),
+        best.label,
+        1,
+        best.verdict,
+        f"top {best.verdict} of {total}: {best.summary}",
+        dict(best.figures),
+    )
+
+
+def _divider_lines(d: DividerMatch, use: Mapping[str, str], ids: Mapping[str, int]) -> list[Chosen]:
+    out: list[Chosen] = []
+    if any(k in use for k in DIVIDER_LINES):
+        for role in DIVIDER_LINES:
+            label = use.get(role)
+            if label is None:
+                raise KitbinError(
+                    "give both --use divider_top=LABEL and --use divider_bottom=LABEL"
+                )
+            if label not in ids:
+                raise NotFoundError(f"bin {label!r} is not a stocked resistor bin")
+            out.append(Chosen(role, ids[label], label, 1, "unverified", "chosen by --use"))
+        return out
+    if d.result is None:
+        return [Chosen(DIVIDER_ROLE, None, None, 1, "none", d.note)]
+    for role, leg in zip(DIVIDER_LINES, (d.result.top, d.result.bottom), strict=True):
+        counts: dict[str, int] = {}
+        for p in leg.parts:
+            counts[p] = counts.get(p, 0) + 1
+        how = "" if leg.connection == "single" else f" ({leg.connection}: {leg.describe()})"
+        for label, n in counts.items():
+            out.append(
+                Chosen(role, ids.get(label), label, n, d.verdict, f"{d.verdict}{how}: {d.note}")
+            )
+    return out
+
+
+def build_sheet(
+    store: Store,
+    plan: str,
+    *,
+    boards: int = 1,
+    use: Mapping[str, str] | None = None,
+    sense: float = DEFAULT_SENSE,
+) -> tuple[PickSheet, list[Chosen], MatchResult]:
+    """A pick list with its bring-up sheet for a plan × boards (nothing is written).
+
+    Raises
+    ------
+    NotFoundError
+        Unknown plan, or a ``--use`` label that is not a candidate of its role.
+    KitbinError
+        Bad ``--boards``/``--use``/``--sense``.
+    """
+    use = dict(use or {})
+    if boards < 1:
+        raise KitbinError(f"--boards {boards}: expected 1 or more")
+    if not (sense > 0 and math.isfinite(sense)):
+        raise KitbinError(f"--sense {sense!r}: expected a positive resistance")
+    m = match_plan(store, plan, top=1, boards=boards)
+    known_roles = set(m.roles) | ({*DIVIDER_LINES, DIVIDER_ROLE} if m.divider else set())
+    unknown = [r for r in use if r not in known_roles]
+    if unknown:
+        raise NotFoundError(
+            f"--use {unknown[0]}=...: plan {m.plan!r} has no role {unknown[0]!r}",
+            "roles: " + ", ".join(sorted(known_roles)),
+        )
+    chosen = [_choose_role(rm, m.spec, use, boards) for rm in m.roles.values()]
+    with store.transaction() as session:
+        if m.divider is not None:
+            labels = [s.label for s in m.divider.stock]
+            labels += [use[k] for k in DIVIDER_LINES if k in use]
+            ids = {}
+            for lab in dict.fromkeys(labels):
+                bid = matchreads.bin_id_for_label(session, lab)
+                if bid is not None:
+                    ids[lab] = bid
+            chosen += _divider_lines(m.divider, use, ids)
+        details = matchreads.bin_details(session, [c.bin_id for c in chosen if c.bin_id])
+    lines = []
+    for c in chosen:
+        det = details.get(c.bin_id or -1)
+        if det is None:
+            lines.append(
+                PickLine(
+                    c.role,
+                    None,
+                    _role_part(c.role),
+                    c.per_board,
+                    boards,
+                    verdict="none",
+                    note=c.note,
+                )
+            )
+            continue
+        tol = det["tol_minus"]
+        lines.append(
+            PickLine(
+                role=c.role,
+                label=det["label"],
+                description=describe_part(det["kind"], det["nominal"]),
+                qty_per_board=c.per_board,
+                boards=boards,
+                on_hand=int(det["qty"]),
+                reserved=int(det["qty_reserved"]),
+                kit=det["kit"] or "",
+                location=det["location"] or "",
+                recognise=recognise(
+                    det["kind"], det["nominal"], tol, det["marking"], det["package"]
+                ),
+                verdict=c.verdict,
+                note=c.note,
+            )
+        )
+    lines = _merge_same_bin(lines)
+    sheet = PickSheet(
+        plan=m.plan,
+        topology=m.spec.topology,
+        boards=boards,
+        lines=tuple(lines),
+        bring_up=bring_up(m, chosen, sense),
+        summary=_summary(m.spec),
+    )
+    return sheet, chosen, m
+
+
+def _merge_same_bin(lines: list[PickLine]) -> list[PickLine]:
+    """One bin used by two lines (e.g. the same capacitor in and out) must be free for both."""
+    from dataclasses import replace
+
+    need: dict[str, int] = {}
+    for ln in lines:
+        if ln.label:
+            need[ln.label] = need.get(ln.label, 0) + ln.qty_total
+    out = []
+    for ln in lines:
+        if ln.label and need[ln.label] > ln.qty_total:
+            others = need[ln.label] - ln.qty_total
+            out.append(
+                replace(
+                    ln,
+                    reserved=ln.reserved + others,
+                    note=(ln.note + f"; {others} more from this bin on another line").strip("; "),
+                )
+            )
+        else:
+            out.append(ln)
+    return out
+
+
+def _role_part(role: str) -> str:
+    return {
+        "inductor": "inductor",
+        "output_capacitor": "capacitor",
+        "input_capacitor": "capacitor",
+        "catch_diode": "diode",
+        "controller": "controller",
+        "set_resistor": "resistor",
+        DIVIDER_ROLE: "resistors",
+    }.get(role, "part")
+
+
+def _summary(spec: Spec) -> str:
+    from kitbin.units import format_quantity as q
+
+    vin = (
+        q(spec.vin_min, "voltage")
+        if spec.vin_min == spec.vin_max
+        else f"{q(spec.vin_min, 'voltage')} … {q(spec.vin_max, 'voltage')}"
+    )
+    sign = "−" if spec.topology == "invert" else ""
+    return (
+        f"{spec.topology}: {vin} → {sign}{q(spec.vout, 'voltage')} at "
+        f"{q(spec.iout_max, 'current')}, {q(spec.fsw, 'frequency')}"
+    )
+
+
+def bring_up(m: MatchResult, chosen: Sequence[Chosen], sense: float) -> BringUpSheet:
+    """What to expect at first power-up with the chosen parts.
+
+    Duty, ripple and peak at each full-load input corner come from
+    :func:`kitbin.stage.operating.operate` with the chosen inductor's typical
+    inductance and DCR (REFERENCES 1.1-1.3); the lowest load for CCM is the largest
+    boundary over the corners; the output band is the divider's worst case; the
+    temperature rise and the saturation margin are the matcher's worst-case figures.
+    """
+    from kitbin.errors import SpecError
+    from kitbin.stage.operating import Parts, corner_points, operate
+
+    spec = m.spec
+    notes: list[str] = []
+    ind = next((c for c in chosen if c.role == "inductor"), None)
+    corners: list[CornerExpectation] = []
+    rise = sat = None
+    if ind is not None and ind.bin_id is not None:
+        rm = m.roles["inductor"]
+        k = int(np.flatnonzero(rm.bin_ids == ind.bin_id)[0])
+        t_l = rm.verdicts.candidates.tables.get("inductance")
+        t_d = rm.verdicts.candidates.tables.get("dcr")
+        l_typ = float(t_l.typical()[k]) if t_l is not None else math.nan
+        dcr_typ = float(t_d.typical()[k]) if t_d is not None else math.nan
+        if math.isnan(dcr_typ):
+            dcr_typ = 0.0
+            notes.append("inductor DCR unknown: the expectations take 0 Ω")
+        if l_typ > 0:
+            try:
+                for _name, vin, io in corner_points(spec):
+                    if io != spec.iout_max:
+                        continue
+                    c = operate(spec, Parts(inductance=l_typ, dcr=dcr_typ), vin, io)
+                    corners.append(
+                        CornerExpectation(vin, c.duty, c.ripple_pp, c.i_peak, c.ccm_min_load)
+                    )
+            except SpecError as error:
+                notes.append(f"operating points not computed: {error}")
+        f = ind.figures
+        r = f.get("rise", math.nan)
+        rise = r if math.isfinite(r) else None
+        pk, isat = f.get("i_peak", math.nan), f.get("isat_low", math.nan)
+        if math.isfinite(pk) and pk > 0 and math.isfinite(isat):
+            sat = isat / pk
+        notes.append(
+            "duty and ripple use the chosen inductor's typical L and DCR; the temperature "
+            "rise and the saturation margin use the worst case of its evidence"
+        )
+    else:
+        notes.append("no inductor chosen: operating points not computed")
+    v_nom = v_lo = v_hi = None
+    d = m.divider
+    if d is not None and d.result is not None:
+        v_nom, v_lo, v_hi = d.result.vout, d.result.vout_low, d.result.vout_high
+    return BringUpSheet(
+        vout_nominal=v_nom,
+        vout_low=v_lo,
+        vout_high=v_hi,
+        corners=tuple(corners),
+        sense_resistance=sense,
+        temp_rise=rise,
+        sat_margin=sat,
+        notes=tuple(notes),
+    )
+
+
+# -- storing, taking, releasing --------------------------------------------------------
+
+
+def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan_id: int) -> int:
+    """Store a pick list in state ``reserved`` and hold its stock (one transaction).
+
+    Raises
+    ------
+    StockError
+        When a role has no bin or a bin has too few free parts; nothing is written.
+    """
+    from kitbin.store.models import PickLine as PickLineRow
+    from kitbin.store.models import PickList
+    from kitbin.store.stock import reserve
+
+    missing = [ln for ln in sheet.lines if not ln.label]
+    if missing:
+        raise StockError(
+            f"cannot reserve: nothing chosen for {', '.join(ln.role for ln in missing)}",
+            "pick a bin with --use ROLE=LABEL",
+        )
+    short = sheet.shortfalls
+    if short:
+        what = ", ".join(f"{ln.label} short by {ln.shortfall}" for ln in short)
+        raise StockError(f"cannot reserve: {what}")
+    ids = {c.label: c.bin_id for c in chosen if c.label}
+    with store.transaction() as session:
+        pl = PickList(
+            plan_id=plan_id, boards=sheet.boards, state="reserved", snapshot=_snapshot(sheet)
+        )
+        session.add(pl)
+        session.flush()
+        for ln in sheet.lines:
+            bin_id = ids[ln.label]
+            session.add(
+                PickLineRow(
+                    pick_list_id=pl.id,
+                    role=ln.role,
+                    bin_id=bin_id,
+                    qty_per_board=ln.qty_per_board,
+                    qty_total=ln.qty_total,
+                )
+            )
+            reserve(session, bin_id, ln.qty_total)
+        return int(pl.id)
+
+
+def _snapshot(sheet: PickSheet) -> dict[str, Any]:
+    from kitbin.picking import bring_up_rows
+
+    return {
+        "plan": sheet.plan,
+        "summary": sheet.summary,
+        "lines": [
+            {
+                "role": ln.role,
+                "bin": ln.label,
+                "part": ln.description,
+                "per_board": ln.qty_per_board,
+                "total": ln.qty_total,
+                "verdict": ln.verdict,
+                "note": ln.note,
+            }
+            for ln in sheet.lines
+        ],
+        "bring_up": [list(r) for r in bring_up_rows(sheet.bring_up)] if sheet.bring_up else [],
+    }
+
+
+def _load_reserved(session: Any, pick_id: int, verb: str) -> Any:
+    pl = matchreads.pick_list(session, pick_id)
+    if pl is None:
+        raise NotFoundError(f"no pick list {pick_id}", "see `kitbin picks list`")
+    if pl.state != "reserved":
+        raise StockError(f"pick list {pick_id} is {pl.state}, not reserved; cannot {verb} it")
+    return pl
+
+
+def take(store: Store, pick_id: int) -> dict[str, Any]:
+    """Take a reserved pick list's parts out of stock: state ``picked``, one stock move
+    per line (with the pick list id), all in one transaction.
+
+    Raises
+    ------
+    NotFoundError
+        No such pick list.
+    StockError
+        The list is not reserved (already picked or cancelled, perhaps by another
+        bench a moment ago); nothing is changed.
+    """
+    from kitbin.store.stock import consume_reserved
+
+    with store.transaction() as session:
+        pl = _load_reserved(session, pick_id, "pick")
+        if not matchreads.set_pick_state(session, pick_id, "reserved", "picked"):
+            raise StockError(f"pick list {pick_id} was changed by someone else; not picked")
+        moves = []
+        for ln in pl.lines:
+            if ln.bin_id is None:
+                continue
+            res = consume_reserved(
+                session,
+                ln.bin_id,
+                ln.qty_total,
+                f"pick list {pick_id}: {ln.role} for {pl.plan.name} × {pl.boards}",
+                pick_list_id=pick_id,
+            )
+            moves.append({"bin": res.label, "delta": res.delta, "qty_after": res.qty})
+        return {"id": pick_id, "state": "picked", "moves": moves}
+
+
+def cancel(store: Store, pick_id: int) -> dict[str, Any]:
+    """Release a reserved pick list's parts: state ``cancelled`` (one transaction).
+
+    Raises
+    ------
+    NotFoundError, StockError
+        As :func:`take`.
+    """
+    from kitbin.store.stock import release
+
+    with store.transaction() as session:
+        pl = _load_reserved(session, pick_id, "cancel")
+        if not matchreads.set_pick_state(session, pick_id, "reserved", "cancelled"):
+            raise StockError(f"pick list {pick_id} was changed by someone else; not cancelled")
+        released = []
+        for ln in pl.lines:
+            if ln.bin_id is None:
+                continue
+            res = release(session, ln.bin_id, ln.qty_total)
+            released.append(
+                {"bin": res.label, "released": ln.qty_total, "qty_reserved": res.qty_reserved}
+            )
+        return {"id": pick_id, "state": "cancelled", "released": released}
+
+
+def list_picks(store: Store, state: str | None = None) -> list[dict[str, Any]]:
+    """Stored pick lists, newest first (keys: id, plan, boards, state, created_at,
+    updated_at, lines: [{role, bin, total}])."""
+    from kitbin.store.models import PICK_STATES
+
+    if state is not None and state not in PICK_STATES:
+        raise KitbinError(f"state {state!r}: expected one of {', '.join(PICK_STATES)}")
+    with store.transaction() as session:
+        rows = matchreads.pick_lists(session, [state] if state else None)
+        labels = matchreads.bin_details(
+            session, [ln.bin_id for pl in rows for ln in pl.lines if ln.bin_id]
+        )
+        return [
+            {
+                "id": pl.id,
+                "plan": pl.plan.name,
+                "boards": pl.boards,
+                "state": pl.state,
+                "created_at": pl.created_at.isoformat() if pl.created_at else None,
+                "updated_at": pl.updated_at.isoformat() if pl.updated_at else None,
+                "lines": [
+                    {
+                        "role": ln.role,
+                        "bin": labels.get(ln.bin_id, {}).get("label") if ln.bin_id else None,
+                        "total": ln.qty_total,
+                    }
+                    for ln in pl.lines
+                ],
+            }
+            for pl in rows
+        ]
+
+
+__all__ = [
+    "DEFAULT_SENSE",
+    "Chosen",
+    "bring_up",
+    "build_sheet",
+    "cancel",
+    "list_picks",
+    "parse_use",
+    "reserve_sheet",
+    "take",
+]
