@@ -72,6 +72,8 @@ __import__("kitbin.cli.bench", fromlist=["register"]).register(app)
 __import__("kitbin.cli.setup", fromlist=["register"]).register(app)
 __import__("kitbin.cli.stage", fromlist=["register"]).register(app)
 __import__("kitbin.cli.plans", fromlist=["register"]).register(app)
+__import__("kitbin.cli.match", fromlist=["register"]).register(app)
+__import__("kitbin.cli.pick", fromlist=["register"]).register(app)
 # -- end of registered command modules --
 
 
