@@ -105,6 +105,7 @@ def register(app: typer.Typer) -> None:
                 )
         else:
             data = bench.ramp(content, params, label=bin_label, file_name=path.name, plot=plot)
+        typer.echo(_CAUTION, err=True)
         if as_json:
             print_json(data)
             return
@@ -163,6 +164,7 @@ def register(app: typer.Typer) -> None:
                 data = bench.heat(
                     content, params, label=bin_label, file_name=path.name, store=store, save=save
                 )
+        typer.echo(_CAUTION, err=True)
         if as_json:
             print_json(data)
             return
@@ -261,7 +263,6 @@ def _print_ramp(data: dict) -> None:
         out(f"  plot: {data['plot']}")
     for w in data["warnings"]:
         typer.echo(f"note: {w}", err=True)
-    typer.echo(_CAUTION, err=True)
 
 
 def _print_heat(data: dict) -> None:
@@ -288,4 +289,3 @@ def _print_heat(data: dict) -> None:
         out(f"  flags        {', '.join(data['flags'])}")
     if data["capture_id"] is not None:
         out(f"  saved as capture {data['capture_id']} with {len(data['readings'])} readings")
-    typer.echo(_CAUTION, err=True)
