@@ -278,13 +278,16 @@ def best_divider(
     legs = _build_legs(stock, connections, boards)
     if legs.value.size == 0:
         return None
-    order = np.argsort(legs.value, kind="stable")
+    order = np.argsort(legs.value)
     tv = legs.value[order]
-    in_range = (legs.value >= lo_b * (1 - 1e-12)) & (legs.value <= hi_b * (1 + 1e-12))
-    bidx = np.flatnonzero(in_range)
-    if bidx.size == 0:
+    # bottoms in range are one slice of the sorted legs, so Rtop* comes out sorted too
+    # and the search over it runs in cache order
+    i0 = int(np.searchsorted(tv, lo_b * (1 - 1e-12), "left"))
+    i1 = int(np.searchsorted(tv, hi_b * (1 + 1e-12), "right"))
+    if i1 <= i0:
         return None
-    rb = legs.value[bidx]
+    bidx = order[i0:i1]
+    rb = tv[i0:i1]
     slope = vref / rb + ifb  # dVout/dRtop for each bottom leg, V/Ω
     rt_star = (target - vref) / slope
     pos = np.searchsorted(tv, rt_star)
@@ -294,9 +297,7 @@ def best_divider(
     err_r = np.abs(tv[right] - rt_star) * slope
     pick = np.where(err_r < err_l, right, left)
     err = np.minimum(err_l, err_r)  # |Vout - target| for the nearest top of each bottom, V
-    parts = (legs.b[bidx] >= 0).astype(int) + (legs.b[order[pick]] >= 0).astype(int)
-    # Best first; among equal errors (to 1e-12 of the target) fewer parts, then higher Rbot.
-    key = np.lexsort((-rb, parts, np.round(err / target, 12)))
+    key = _candidate_order(err, target, legs.b[bidx] >= 0, legs.b[order[pick]] >= 0, rb)
     avail = np.array([r.available for r in stock], dtype=np.int64)
 
     best: tuple[float, int, int] | None = None  # (abs error, bottom leg, top leg)
@@ -320,6 +321,7 @@ def best_divider(
         )
         if found is not None and (best is None or found[0] < best[0] * (1 - 1e-12) - 1e-15):
             best = (found[0], b_leg, found[1])
+            key.best = best[0]
     if best is None:
         return None
     _, b_leg, t_leg = best
@@ -340,6 +342,38 @@ def best_divider(
         divider_current=vout / (top.value + bottom.value),
         searched=int(bidx.size) * int(tv.size),
     )
+
+
+def _candidate_order(
+    err: np.ndarray, target: float, b_pair: np.ndarray, t_pair: np.ndarray, rb: np.ndarray
+) -> _LazyOrder:
+    """Bottom legs in the order to try: least error first; among equal errors (to 1e-12
+    of the target) fewer parts, then higher Rbot.
+
+    Only the near-best few are sorted up front (the search nearly always stops at the
+    first); the rest follow by error, sorted only if the walk gets that far.
+    """
+    e_min = float(err.min())
+    near = np.flatnonzero(err <= e_min * (1 + 1e-9) + 1e-12 * target)
+    parts = b_pair[near].astype(int) + t_pair[near].astype(int)
+    head = near[np.lexsort((-rb[near], parts, np.round(err[near] / target, 12)))]
+    rest = np.setdiff1d(np.arange(err.size), near, assume_unique=True)
+    return _LazyOrder(head, rest, err)
+
+
+class _LazyOrder:
+    """Iterate ``head``, then ``rest`` sorted by error — sorted only when the caller has
+    not yet found a feasible pair at least as good as the best of ``rest``."""
+
+    def __init__(self, head: np.ndarray, rest: np.ndarray, err: np.ndarray) -> None:
+        self.head, self.rest, self.err = head, rest, err
+        self.rest_min = float(err[rest].min()) if rest.size else math.inf
+        self.best = math.inf
+
+    def __iter__(self):  # -> Iterator[int]
+        yield from self.head.tolist()
+        if self.rest.size and self.best > self.rest_min * (1 + 1e-12) + 1e-15:
+            yield from self.rest[np.argsort(self.err[self.rest], kind="stable")].tolist()
 
 
 def _nearest_feasible_top(
