@@ -1,17 +1,18 @@
 """Operating points against ngspice transient simulations of the same power stage.
 
 Each netlist is generated here from the spec: ideal voltage-controlled switch
-(``sw`` model, on-resistance = the spec's rsw or 0.1 mΩ, off 1 MΩ), XSPICE ``sidiode``
-rectifier with the spec's forward drop (off 1 MΩ: a 1 GΩ off-state makes the idle DCM
-interval numerically stiff, 50× slower, for a 12 µA difference), inductor DCR and
-capacitor ESR as resistors, resistive load Vo/Io, the duty set open loop from :func:`kitbin.stage.solve`. The
-run starts at the expected state (output at Vo, inductor at its start-of-period
-current) and steps 160 periods with a 1/1000-period step; the last full period is
-written with ``wrdata`` and linearised. A slow residual transient is removed by
-detrending the window (the steady waveform is periodic, so its end equals its
-start); the remaining drift is asserted small, and the net capacitor charge per
-period is asserted near zero, which checks the duty formula itself (a wrong D
-would charge or discharge the output).
+(``sw`` model, on-resistance = the spec's rsw or 0.1 mΩ, off 1 MΩ), XSPICE
+``sidiode`` rectifier with the spec's forward drop (off 1 MΩ: a 1 GΩ off-state
+makes the idle DCM interval numerically stiff, 50× slower, for a 12 µA
+difference), inductor DCR and capacitor ESR as resistors, resistive load Vo/Io,
+the duty set open loop from :func:`kitbin.stage.solve`. The run starts at the
+expected state (output at Vo, inductor at its start-of-period current) and steps
+160 periods with a 1/1000-period step; the last full period is written with
+``wrdata`` and linearised. A slow residual transient is removed by detrending the
+window (the steady waveform is periodic, so its end equals its start); the
+remaining drift is asserted small, and the net capacitor charge per period is
+asserted near zero, which checks the duty formula itself (a wrong D would charge
+or discharge the output).
 
 Compared within 2 %: ripple p-p, peak and average inductor current, output ripple
 p-p (the exact-waveform value). Source of the check: ngspice (Debian ngspice 39),
