@@ -106,6 +106,22 @@ def databases(tmp_path: Path) -> Iterator[_Databases]:
     factory.drop_all()
 
 
+@pytest.fixture(scope="module", params=BACKENDS)
+def module_backend(request: pytest.FixtureRequest) -> str:
+    """Like ``backend``, for module-scoped fixtures (one costly set-up per backend)."""
+    if request.param == "postgresql" and pg_server_url() is None:
+        pytest.skip(_PG_SKIP)
+    return request.param
+
+
+@pytest.fixture(scope="module")
+def module_databases(tmp_path_factory: pytest.TempPathFactory) -> Iterator[_Databases]:
+    """Like ``databases``, kept for a whole test module."""
+    factory = _Databases(tmp_path_factory.mktemp("dbs"))
+    yield factory
+    factory.drop_all()
+
+
 @pytest.fixture
 def db_url(backend: str, databases: _Databases) -> str:
     """A URL of a fresh, empty database on this run's backend."""

@@ -33,7 +33,9 @@ from kitbin.store.locate import mask_url, password_of, resolve_url, sqlite_path
 if TYPE_CHECKING:
     from sqlalchemy.engine import Connection, Engine
 
-SQLITE_PRAGMAS = ("journal_mode=WAL", "busy_timeout=10000", "synchronous=NORMAL")
+#: How long a write waits for another writer's lock before giving up (both backends).
+LOCK_TIMEOUT_MS = 10000
+SQLITE_PRAGMAS = ("journal_mode=WAL", f"busy_timeout={LOCK_TIMEOUT_MS}", "synchronous=NORMAL")
 MIGRATIONS_DIR = Path(__file__).parent / "migrations"
 #: Tables every kitbin schema has; a database holding other tables but no
 #: revision is not ours and is left alone.
@@ -52,6 +54,24 @@ def driver_message(error: BaseException, url: str = "") -> str:
         for spelling in sorted({secret, unquote(secret)}, key=len, reverse=True):
             line = line.replace(spelling, "***")
     return line
+
+
+def is_busy(error: BaseException) -> bool:
+    """True for a lock that was not granted in time (SQLite busy, PostgreSQL lock timeout,
+    deadlock or serialisation failure): the work was rolled back and may be tried again."""
+    orig = getattr(error, "orig", None) or error
+    if type(orig).__name__ in ("LockNotAvailable", "DeadlockDetected", "SerializationFailure"):
+        return True
+    return "database is locked" in str(orig) or "database is busy" in str(orig)
+
+
+def busy_error(error: BaseException, url: str) -> StoreError:
+    """The one line shown when a lock was not granted in time."""
+    return StoreError(
+        f"the database is busy: another user held a lock for over {LOCK_TIMEOUT_MS / 1000:g} s "
+        f"({driver_message(error, url)}); nothing was changed",
+        "try again",
+    )
 
 
 def make_engine(url: str, *, foreign_keys: bool = True) -> Engine:
@@ -76,7 +96,11 @@ def make_engine(url: str, *, foreign_keys: bool = True) -> Engine:
         if url.startswith("sqlite"):
             return _sqlite_engine(url, foreign_keys=foreign_keys)
         if url.startswith("postgresql"):
-            return create_engine(url, pool_pre_ping=True, connect_args={"connect_timeout": 10})
+            connect_args: dict = {"connect_timeout": 10}
+            if "options=" not in url:
+                # Wait at most as long as SQLite's busy timeout for a row lock.
+                connect_args["options"] = f"-c lock_timeout={LOCK_TIMEOUT_MS}"
+            return create_engine(url, pool_pre_ping=True, connect_args=connect_args)
         return create_engine(url)
     except (SQLAlchemyError, ImportError, ValueError) as e:
         raise StoreError(
@@ -268,6 +292,8 @@ class Store:
         except KitbinError:
             raise
         except SQLAlchemyError as e:
+            if is_busy(e):
+                raise busy_error(e, self.url) from e
             raise StoreError(f"database error: {driver_message(e, self.url)}") from e
         finally:
             session.close()
@@ -316,6 +342,8 @@ def open_store(url: str | None = None, *, create: bool = True) -> Store:
         raise
     except SQLAlchemyError as e:
         engine.dispose()
+        if is_busy(e):
+            raise busy_error(e, resolved) from e
         raise StoreError(
             f"cannot open database {mask_url(resolved)}: {driver_message(e, resolved)}"
         ) from e
