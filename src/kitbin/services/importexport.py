@@ -92,7 +92,7 @@ def _number(text: str, dimension: str, row: _Row, column: str, parse: Callable) 
         try:
             value = parse(text, dimension)
         except QuantityError as e:
-            raise row.fail(f"{column} {e.msg}") from None
+            raise row.fail(f"{column}: {e.msg}") from None
     if not math.isfinite(value):
         raise row.fail(f"{column} '{text}' is not a finite number")
     return value
@@ -322,7 +322,7 @@ def _check_bin_row(
         try:
             decoded = decode_marking(marking, kind)
         except KitbinError as e:
-            raise row.fail(f"marking {e.msg}") from None
+            raise row.fail(f"marking: {e.msg}") from None
         nominal = decoded.value
         if tol_minus is None and decoded.tol_minus is not None:
             tol_minus, tol_plus = decoded.tol_minus, decoded.tol_plus
