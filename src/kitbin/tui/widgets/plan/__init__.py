@@ -1,0 +1,1 @@
+"""The plan view's pieces: text shaping for corners, demands, verdicts and pick lists."""

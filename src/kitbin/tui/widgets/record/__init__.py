@@ -1,0 +1,1 @@
+"""The recording forms' checks: what is typed, read as you type (pure)."""

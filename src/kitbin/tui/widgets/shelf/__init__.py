@@ -1,0 +1,1 @@
+"""The shelf view's pieces: row shaping and filtering (pure) and the bin grid widget."""
