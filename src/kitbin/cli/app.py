@@ -74,6 +74,7 @@ __import__("kitbin.cli.stage", fromlist=["register"]).register(app)
 __import__("kitbin.cli.plans", fromlist=["register"]).register(app)
 __import__("kitbin.cli.match", fromlist=["register"]).register(app)
 __import__("kitbin.cli.pick", fromlist=["register"]).register(app)
+__import__("kitbin.cli.ui", fromlist=["register"]).register(app)
 # -- end of registered command modules --
 
 
