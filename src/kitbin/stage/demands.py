@@ -430,13 +430,14 @@ def _inductor(
 
 def _cap_pp_current(c: Corner, spec: Spec, output: bool) -> float:
     """Peak-to-peak current of a capacitor at a corner (A)."""
+    span = c.i_peak - min(0.0, c.i_valley)
     if output:
         if spec.topology == "buck":
             return c.ripple_pp if c.mode == "CCM" else c.i_peak
-        return c.i_peak
+        return span
     if spec.topology == "boost":
         return c.ripple_pp if c.mode == "CCM" else c.i_peak
-    return c.i_peak
+    return span
 
 
 def _output_cap(spec: Spec, ops: Sequence[Corner], full: Sequence[Corner]) -> Demand:

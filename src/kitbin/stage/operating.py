@@ -372,9 +372,16 @@ def operate(spec: Spec, parts: Parts, vin: float, iout: float, name: str = "") -
         c, esr = parts.cout, parts.esr
         vr = ripple_pp(*_output_waveform(spec, s, iout), c, esr)
         buckish = spec.topology == "buck"
-        if s.mode == "CCM":
-            vr_c = s.ripple_pp / (8 * spec.fsw * c) if buckish else iout * s.duty / (spec.fsw * c)
-            vr_esr = esr * (s.ripple_pp if buckish else s.i_peak)
+        if s.mode == "CCM" and buckish:
+            vr_c = s.ripple_pp / (8 * spec.fsw * c)
+            vr_esr = esr * s.ripple_pp
+        elif s.mode == "CCM":
+            if s.i_valley >= iout or s.ripple_pp == 0:
+                vr_c = iout * s.duty / (spec.fsw * c)
+            else:  # valley below the load: only part of the off-time charges C
+                vr_c = (s.i_peak - iout) ** 2 * (1 - s.duty) * ts / (2 * s.ripple_pp * c)
+            # the capacitor current spans -Io .. Ipk - Io (and below, if the valley is negative)
+            vr_esr = esr * (s.i_peak - min(0.0, s.i_valley))
         else:
             span = (s.duty + s.d2) if buckish else s.d2
             vr_c = (s.i_peak - iout) ** 2 * span * ts / (2 * s.i_peak * c) if s.i_peak > 0 else 0.0
