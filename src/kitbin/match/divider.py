@@ -65,6 +65,38 @@ class StockResistor:
             raise ValueError(f"resistor {self.label!r}: needs 0 < low <= high and value > 0")
 
 
+@dataclass(frozen=True, eq=False)
+class StockArrays:
+    """Stocked resistors as arrays (the same fields as :class:`StockResistor`).
+
+    For large stocks: building one object per bin costs more than the search.
+    """
+
+    labels: Sequence[str]
+    value: np.ndarray
+    low: np.ndarray
+    high: np.ndarray
+    available: np.ndarray
+    grade: Sequence[str] = ()
+
+    @classmethod
+    def of(cls, stock: Sequence[StockResistor] | StockArrays) -> StockArrays:
+        """Arrays from a list of :class:`StockResistor` (or the arrays themselves)."""
+        if isinstance(stock, StockArrays):
+            return stock
+        return cls(
+            labels=[r.label for r in stock],
+            value=np.array([r.value for r in stock], dtype=float),
+            low=np.array([r.low for r in stock], dtype=float),
+            high=np.array([r.high for r in stock], dtype=float),
+            available=np.array([r.available for r in stock], dtype=np.int64),
+            grade=[r.grade for r in stock],
+        )
+
+    def __len__(self) -> int:
+        return int(self.value.size)
+
+
 @dataclass(frozen=True)
 class Leg:
     """One leg of a divider: one stocked resistor, or two in series or in parallel.
@@ -159,11 +191,9 @@ class _Legs:
     kind: np.ndarray  # 0 single, 1 series, 2 parallel
 
 
-def _build_legs(stock: Sequence[StockResistor], connections: Sequence[str], boards: int) -> _Legs:
-    v = np.array([r.value for r in stock], dtype=float)
-    lo = np.array([r.low for r in stock], dtype=float)
-    hi = np.array([r.high for r in stock], dtype=float)
-    avail = np.array([r.available for r in stock], dtype=np.int64)
+def _build_legs(stock: StockArrays, connections: Sequence[str], boards: int) -> _Legs:
+    v, lo, hi = stock.value, stock.low, stock.high
+    avail = np.asarray(stock.available, dtype=np.int64)
     parts_v, parts_lo, parts_hi, pa, pb, pk = [], [], [], [], [], []
     if "single" in connections:
         ok = np.flatnonzero(avail >= boards)
@@ -220,7 +250,7 @@ def _usage_ok(
 
 
 def best_divider(
-    stock: Sequence[StockResistor],
+    stock: Sequence[StockResistor] | StockArrays,
     vref: float,
     target: float,
     *,
@@ -275,6 +305,7 @@ def best_divider(
     if boards < 1:
         raise ValueError("boards must be at least 1")
     lo_b, hi_b = rbot_range
+    stock = StockArrays.of(stock)
     legs = _build_legs(stock, connections, boards)
     if legs.value.size == 0:
         return None
@@ -298,7 +329,7 @@ def best_divider(
     pick = np.where(err_r < err_l, right, left)
     err = np.minimum(err_l, err_r)  # |Vout - target| for the nearest top of each bottom, V
     key = _candidate_order(err, target, legs.b[bidx] >= 0, legs.b[order[pick]] >= 0, rb)
-    avail = np.array([r.available for r in stock], dtype=np.int64)
+    avail = np.asarray(stock.available, dtype=np.int64)
 
     best: tuple[float, int, int] | None = None  # (abs error, bottom leg, top leg)
     for k in key:
@@ -408,9 +439,9 @@ def _nearest_feasible_top(
     return None
 
 
-def _leg(stock: Sequence[StockResistor], legs: _Legs, i: int) -> Leg:
+def _leg(stock: StockArrays, legs: _Legs, i: int) -> Leg:
     a, b, kind = int(legs.a[i]), int(legs.b[i]), int(legs.kind[i])
-    names = (stock[a].label,) if b < 0 else (stock[a].label, stock[b].label)
+    names = (stock.labels[a],) if b < 0 else (stock.labels[a], stock.labels[b])
     return Leg(
         parts=names,
         connection=CONNECTIONS[kind],
@@ -421,7 +452,7 @@ def _leg(stock: Sequence[StockResistor], legs: _Legs, i: int) -> Leg:
 
 
 def nearest_leg(
-    stock: Sequence[StockResistor],
+    stock: Sequence[StockResistor] | StockArrays,
     target: float,
     *,
     connections: Sequence[str] = ("single",),
@@ -439,6 +470,7 @@ def nearest_leg(
     """
     if not target > 0:
         raise ValueError("target resistance must be positive")
+    stock = StockArrays.of(stock)
     legs = _build_legs(stock, connections, boards)
     if legs.value.size == 0:
         return None

@@ -348,7 +348,7 @@ class Candidates:
         Row -> (currents A, incremental inductances H) of a measured L(i) curve.
     """
 
-    labels: tuple[str, ...]
+    labels: Sequence[str]
     available: np.ndarray
     tables: Mapping[str, EvidenceTable]
     curves: Mapping[int, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)

@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from kitbin.errors import KitbinError, NotFoundError, SpecError
-from kitbin.match.divider import DividerResult, StockResistor, best_divider
+from kitbin.match.divider import DividerResult, StockArrays, best_divider
 from kitbin.match.evidence import GRADES, grade_of_source
 from kitbin.match.evidence_table import EvidenceTable, evidence_table
 from kitbin.match.ranking import RankedRow, rank, status_counts
@@ -49,7 +49,7 @@ class Stock:
     """The bins of some kinds with their evidence tables (rows in id order)."""
 
     ids: np.ndarray
-    labels: tuple[str, ...]
+    labels: np.ndarray
     kinds: np.ndarray
     nominal: np.ndarray
     available: np.ndarray
@@ -61,10 +61,14 @@ class Stock:
         rows = np.flatnonzero(np.isin(self.kinds, list(kinds)))
         if rows.size == self.ids.size:
             return rows, Candidates(self.labels, self.available, self.tables, self.curves)
-        pos = {int(r): i for i, r in enumerate(rows)}
         tables = {q: _take(t, rows) for q, t in self.tables.items()}
-        curves = {pos[r]: c for r, c in self.curves.items() if r in pos}
-        labels = tuple(self.labels[int(r)] for r in rows)
+        where = np.searchsorted(rows, np.fromiter(self.curves, dtype=np.int64))
+        curves = {
+            int(w): c
+            for w, (r, c) in zip(where, self.curves.items(), strict=True)
+            if w < rows.size and rows[w] == r
+        }
+        labels = np.asarray(self.labels, dtype=object)[rows]
         return rows, Candidates(labels, self.available[rows], tables, curves)
 
 
@@ -96,57 +100,56 @@ def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]
     """
     kinds = tuple(dict.fromkeys(kinds))
     quantities = tuple(q for q in dict.fromkeys(quantities) if q in QUANTITIES)
-    ids, labels, kind, nominal, tol_m, tol_p, qty, reserved = bulk.candidate_bins(session, kinds)
-    ids_a = np.asarray(ids, dtype=np.int64)
-    n = ids_a.size
-    kind_a = np.asarray(kind, dtype=object) if n else np.empty(0, dtype=object)
-    nom = _floats(nominal, n)
-    tm = _floats(tol_m, n)
-    tp = _floats(tol_p, n)
-    avail = np.asarray(qty, dtype=np.int64) - np.asarray(reserved, dtype=np.int64)
-    if n == 0:
-        avail = np.zeros(0, dtype=np.int64)
+    bins, labels = bulk.candidate_bins(session, kinds)
+    n = bins.shape[0]
+    ids_a = bins[:, 0].astype(np.int64)
+    kind_a = np.asarray(kinds, dtype=object)[bins[:, 1].astype(np.int64)] if n else np.empty(0)
+    nom, tm, tp = bins[:, 2], bins[:, 3], bins[:, 4]
+    avail = (bins[:, 5] - bins[:, 6]).astype(np.int64)
 
-    r_bin, r_q, r_val, r_bound = bulk.reading_rows(session, kinds, quantities) if n else ((),) * 4
-    r_row = np.searchsorted(ids_a, np.asarray(r_bin, dtype=np.int64))
-    r_q_a = np.asarray(r_q, dtype=object)
-    r_val_a = np.asarray(r_val, dtype=float)
-    r_bnd_a = np.asarray(r_bound, dtype=object) == ">="
+    reads = bulk.reading_rows(session, quantities) if n and quantities else np.empty((0, 4))
+    r_row, r_keep = _rows_of(ids_a, reads[:, 0])
+    reads = reads[r_keep]
+    r_q, r_val, r_bnd = reads[:, 1].astype(np.int64), reads[:, 2], reads[:, 3] > 0
 
     names = quantities + tuple(f"{q}_tol" for q in quantities if f"{q}_tol" in QUANTITIES)
-    p_bin, p_name, p_val, p_src = bulk.property_rows(session, kinds, names) if n else ((),) * 4
-    p_row = np.searchsorted(ids_a, np.asarray(p_bin, dtype=np.int64))
-    p_name_a = np.asarray(p_name, dtype=object)
-    p_val_a = np.asarray(p_val, dtype=float)
-    grade_cache: dict[str, int] = {}
-    p_grade = np.array(
-        [grade_cache.setdefault(s, GRADES.index(grade_of_source(s))) for s in p_src],
-        dtype=np.int8,
+    props, sources = bulk.property_rows(session, names) if n else (np.empty((0, 3)), [])
+    p_row, p_keep = _rows_of(ids_a, props[:, 0])
+    props = props[p_keep]
+    p_name, p_val = props[:, 1].astype(np.int64), props[:, 2]
+    codes = {src: GRADES.index(grade_of_source(src)) for src in set(sources)}
+    p_grade = (
+        np.array([codes[src] for src in sources], dtype=np.int8)[p_keep]
+        if sources
+        else np.empty(0, dtype=np.int8)
     )
 
-    nominal_q = np.array([NOMINAL_QUANTITY.get(k, "") for k in kind_a], dtype=object)
+    nominal_q = np.array([NOMINAL_QUANTITY.get(k, "") for k in kinds], dtype=object)
+    row_nominal_q = nominal_q[bins[:, 1].astype(np.int64)] if n else np.empty(0, dtype=object)
     tables: dict[str, EvidenceTable] = {}
-    for q in quantities:
-        rm = r_q_a == q
-        pm = p_name_a == q
-        tol_q = f"{q}_tol"
+    for qi, q in enumerate(quantities):
+        rm = r_q == qi
+        pm = p_name == qi
         prop_tol = np.zeros(int(pm.sum()))
-        tm_mask = p_name_a == tol_q
-        if tm_mask.any() and pm.any():
-            tol_by_row = dict(zip(p_row[tm_mask].tolist(), p_val_a[tm_mask].tolist(), strict=True))
-            prop_tol = np.array([tol_by_row.get(int(r), 0.0) for r in p_row[pm]])
-        has_nominal = nominal_q == q
+        tol_name = f"{q}_tol"
+        if tol_name in names and pm.any():
+            tmask = p_name == names.index(tol_name)
+            if tmask.any():
+                tol_by_row = np.zeros(n)
+                tol_by_row[p_row[tmask]] = p_val[tmask]
+                prop_tol = tol_by_row[p_row[pm]]
+        has_nominal = row_nominal_q == q
         tables[q] = evidence_table(
             q,
             n,
             reading_row=r_row[rm],
-            reading_value=r_val_a[rm],
-            reading_bound=r_bnd_a[rm],
+            reading_value=r_val[rm],
+            reading_bound=r_bnd[rm],
             nominal=np.where(has_nominal, nom, np.nan) if has_nominal.any() else None,
             tol_minus=tm,
             tol_plus=tp,
             prop_row=p_row[pm],
-            prop_value=p_val_a[pm],
+            prop_value=p_val[pm],
             prop_grade=p_grade[pm],
             prop_tol=prop_tol,
         )
@@ -156,13 +159,16 @@ def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]
             parsed = _curve(curve)
             if parsed is not None:
                 curves[int(np.searchsorted(ids_a, bin_id))] = parsed
-    return Stock(ids_a, tuple(labels), kind_a, nom, avail, tables, curves)
+    return Stock(ids_a, np.asarray(labels, dtype=object), kind_a, nom, avail, tables, curves)
 
 
-def _floats(values: Sequence[Any], n: int) -> np.ndarray:
-    if n == 0:
-        return np.zeros(0)
-    return np.array([np.nan if v is None else float(v) for v in values], dtype=float)
+def _rows_of(ids: np.ndarray, bin_ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Row index in ``ids`` (sorted) of each bin id, and which ids are among them."""
+    b = bin_ids.astype(np.int64)
+    pos = np.searchsorted(ids, b)
+    pos_c = np.clip(pos, 0, max(ids.size - 1, 0))
+    keep = (ids.size > 0) & (ids[pos_c] == b) if ids.size else np.zeros(b.size, dtype=bool)
+    return pos_c[keep], keep
 
 
 def _curve(data: Any) -> tuple[np.ndarray, np.ndarray] | None:
@@ -232,7 +238,7 @@ class DividerMatch:
     verdict: str
     note: str
     vref: float | None
-    stock: tuple[StockResistor, ...] = ()
+    stock: StockArrays | None = None
 
 
 @dataclass
@@ -342,21 +348,7 @@ def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int
     if spec.vref is None:
         note = "controller reference voltage unknown: no divider searched (give the plan a vref)"
         return DividerMatch(None, (), "fails", note, None)
-    t = cands.tables.get("resistance")
-    stock: list[StockResistor] = []
-    if t is not None:
-        typ = t.typical()
-        for k, label in enumerate(cands.labels):
-            lo, hi, v = float(t.low[k]), float(t.high[k]), float(typ[k])
-            if (
-                t.grade[k] == GRADES.index("unknown")
-                or not (lo > 0 and math.isfinite(hi) and v > 0)
-                or cands.available[k] < boards
-            ):
-                continue
-            stock.append(
-                StockResistor(label, v, lo, hi, int(cands.available[k]), GRADES[t.grade[k]])
-            )
+    stock = resistor_stock(cands, boards)
     tol = spec.vref_tol or 0.0
     ifb = spec.ifb or 0.0
     kw = {"vref_tol": tol, "ifb": ifb, "boards": boards}
@@ -381,7 +373,7 @@ def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int
         f"{best.vout_low:.4g} … {best.vout_high:.4g} V; allowed ratio "
         f"{lo_ratio:.4g} … {hi_ratio:.4g}"
     )
-    grades = {x.label: x.grade for x in stock}
+    grades = dict(zip(stock.labels, stock.grade, strict=True))
     marked = [p for p in (*best.top.parts, *best.bottom.parts) if grades.get(p) != "measured"]
     if group == 2 and marked and lo_ratio <= best.top.value / best.bottom.value <= hi_ratio:
         note += (
@@ -389,7 +381,36 @@ def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int
             + ", ".join(dict.fromkeys(marked))
             + " to narrow the band"
         )
-    return DividerMatch(best, checks, VERDICTS[group], note, spec.vref, tuple(stock))
+    return DividerMatch(best, checks, VERDICTS[group], note, spec.vref, stock)
+
+
+def resistor_stock(cands: Candidates, boards: int) -> StockArrays:
+    """Resistor bins usable in a divider: known resistance, enough free parts.
+
+    Value: the mean of the readings when measured, else the nominal; interval: the
+    evidence interval (worst-case ends).
+    """
+    t = cands.tables.get("resistance")
+    if t is None:
+        return StockArrays([], np.empty(0), np.empty(0), np.empty(0), np.empty(0, np.int64), [])
+    typ = t.typical()
+    ok = (
+        (t.grade != GRADES.index("unknown"))
+        & (t.low > 0)
+        & np.isfinite(t.high)
+        & (typ > 0)
+        & (cands.available >= boards)
+    )
+    rows = np.flatnonzero(ok)
+    labels = np.asarray(cands.labels, dtype=object)[rows]
+    return StockArrays(
+        labels=labels.tolist(),
+        value=typ[rows],
+        low=t.low[rows],
+        high=t.high[rows],
+        available=cands.available[rows],
+        grade=[GRADES[g] for g in t.grade[rows].tolist()],
+    )
 
 
 CONNECTIONS_ALL = ("single", "series", "parallel")
@@ -413,14 +434,14 @@ def _band_dev(r: DividerResult) -> float:
 
 
 def _divider_checks(
-    demand: Demand, res: DividerResult | None, stock: Sequence[StockResistor] = ()
+    demand: Demand, res: DividerResult | None, stock: StockArrays | None = None
 ) -> tuple[Check, ...]:
     """The divider demand's constraints judged on the chosen legs' worst-case ends."""
     from kitbin.match.evidence import weakest
 
     if res is None:
         return ()
-    by_label = {s.label: s.grade for s in stock}
+    by_label = dict(zip(stock.labels, stock.grade, strict=True)) if stock is not None else {}
     grade = weakest(by_label.get(p, "unknown") for p in (*res.top.parts, *res.bottom.parts))
     out = []
     ratio_lo = res.top.low / res.bottom.high

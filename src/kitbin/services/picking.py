@@ -201,8 +201,9 @@ def build_sheet(
     chosen = [_choose_role(rm, m.spec, use, boards) for rm in m.roles.values()]
     with store.transaction() as session:
         if m.divider is not None:
-            labels = [s.label for s in m.divider.stock]
-            labels += [use[k] for k in DIVIDER_LINES if k in use]
+            labels = [use[k] for k in DIVIDER_LINES if k in use]
+            if m.divider.result is not None:
+                labels += [*m.divider.result.top.parts, *m.divider.result.bottom.parts]
             ids = {}
             for lab in dict.fromkeys(labels):
                 bid = matchreads.bin_id_for_label(session, lab)

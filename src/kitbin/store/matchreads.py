@@ -8,63 +8,104 @@ column, ready for numpy. Bound parameters only.
 
 from __future__ import annotations
 
+import itertools
 from collections.abc import Iterable, Sequence
 from typing import Any
 
-from sqlalchemy import func, select, update
+import numpy as np
+from sqlalchemy import case, func, literal, select, update
 from sqlalchemy.orm import Session, selectinload
 
 from kitbin.store.models import Bin, BinProperty, Capture, Kit, PickList, Plan, Reading, utcnow
 
 
-def _columns(rows: Sequence[Sequence[Any]], width: int) -> list[tuple[Any, ...]]:
-    if not rows:
-        return [() for _ in range(width)]
-    return list(zip(*rows, strict=True))
+def _fetch(session: Session, stmt: Any) -> list[tuple[Any, ...]]:
+    """All rows of a Core SELECT as plain tuples, fetched on the driver's cursor.
+
+    Building SQLAlchemy ``Row`` objects costs about 2 µs a row (measured: 0.6 s of
+    the 1.0 s that 470,000 matcher rows took); the statement is still built and
+    compiled by SQLAlchemy, with bound parameters, for the session's dialect.
+    """
+    conn = session.connection()
+    compiled = stmt.compile(dialect=conn.dialect, compile_kwargs={"render_postcompile": True})
+    params = compiled.construct_params()
+    args: Any = (
+        tuple(params[k] for k in compiled.positiontup or ()) if compiled.positional else params
+    )
+    cursor = conn.connection.dbapi_connection.cursor()
+    try:
+        cursor.execute(compiled.string, args)
+        return cursor.fetchall()
+    finally:
+        cursor.close()
 
 
-def candidate_bins(session: Session, kinds: Iterable[str]) -> list[tuple[Any, ...]]:
-    """Columns (id, label, kind, nominal, tol_minus, tol_plus, qty, qty_reserved), by id."""
+def _numeric(rows: Sequence[Sequence[Any]], width: int) -> np.ndarray:
+    """Rows of numbers as a float array of shape (n, width), fast (no per-row objects)."""
+    flat = np.fromiter(itertools.chain.from_iterable(rows), dtype=float, count=len(rows) * width)
+    return flat.reshape(len(rows), width)
+
+
+def _code(column: Any, names: Sequence[str]) -> Any:
+    """SQL ``CASE column WHEN names[0] THEN 0 ... ELSE -1 END``."""
+    if not names:
+        return literal(-1)
+    return case({name: i for i, name in enumerate(names)}, value=column, else_=-1)
+
+
+def candidate_bins(session: Session, kinds: Sequence[str]) -> tuple[np.ndarray, list[str]]:
+    """Bins of these kinds, by id: a float array with columns (id, kind index into
+    ``kinds``, nominal, tol_minus, tol_plus, qty, qty_reserved) — a missing nominal or
+    tolerance is nan — and the labels in the same order."""
+    kinds = list(kinds)
     stmt = (
         select(
             Bin.id,
-            Bin.label,
-            Bin.kind,
-            Bin.nominal,
-            Bin.tol_minus,
-            Bin.tol_plus,
+            _code(Bin.kind, kinds),
+            func.coalesce(Bin.nominal, -1.0),
+            func.coalesce(Bin.tol_minus, -1.0),
+            func.coalesce(Bin.tol_plus, -1.0),
             Bin.qty,
             Bin.qty_reserved,
         )
-        .where(Bin.kind.in_(list(kinds)))
+        .where(Bin.kind.in_(kinds))
         .order_by(Bin.id)
     )
-    return _columns(session.execute(stmt).all(), 8)
+    arr = _numeric(_fetch(session, stmt), 7)
+    arr[:, 2:5] = np.where(arr[:, 2:5] < 0, np.nan, arr[:, 2:5])
+    labels = [
+        r[0] for r in _fetch(session, select(Bin.label).where(Bin.kind.in_(kinds)).order_by(Bin.id))
+    ]
+    return arr, labels
 
 
-def reading_rows(
-    session: Session, kinds: Iterable[str], quantities: Iterable[str]
-) -> list[tuple[Any, ...]]:
-    """Columns (bin_id, quantity, value, bound) of readings on bins of these kinds."""
+def reading_rows(session: Session, quantities: Sequence[str]) -> np.ndarray:
+    """Readings of these quantities: float array (bin_id, quantity index, value,
+    1.0 for a lower bound ``>=``). Every kind of bin; the caller keeps the bins it wants
+    (a join on the bin table to filter by kind costs more than it saves: measured
+    0.30 s against 0.21 s for 295,000 rows)."""
+    quantities = list(quantities)
+    stmt = select(
+        Reading.bin_id,
+        _code(Reading.quantity, quantities),
+        Reading.value,
+        case((Reading.bound == ">=", 1.0), else_=0.0),
+    ).where(Reading.quantity.in_(quantities))
+    return _numeric(_fetch(session, stmt), 4)
+
+
+def property_rows(session: Session, names: Sequence[str]) -> tuple[np.ndarray, list[str]]:
+    """Properties with these names: float array (bin_id, name index, value), and the
+    source text of each, in the same order (by property id)."""
+    names = list(names)
     stmt = (
-        select(Reading.bin_id, Reading.quantity, Reading.value, Reading.bound)
-        .join(Bin, Bin.id == Reading.bin_id)
-        .where(Bin.kind.in_(list(kinds)), Reading.quantity.in_(list(quantities)))
-    )
-    return _columns(session.execute(stmt).all(), 4)
-
-
-def property_rows(
-    session: Session, kinds: Iterable[str], names: Iterable[str]
-) -> list[tuple[Any, ...]]:
-    """Columns (bin_id, name, value, source) of properties on bins of these kinds."""
-    stmt = (
-        select(BinProperty.bin_id, BinProperty.name, BinProperty.value, BinProperty.source)
-        .join(Bin, Bin.id == BinProperty.bin_id)
-        .where(Bin.kind.in_(list(kinds)), BinProperty.name.in_(list(names)))
+        select(BinProperty.bin_id, _code(BinProperty.name, names), BinProperty.value)
+        .where(BinProperty.name.in_(names))
         .order_by(BinProperty.id)
     )
-    return _columns(session.execute(stmt).all(), 4)
+    arr = _numeric(_fetch(session, stmt), 3)
+    src = select(BinProperty.source).where(BinProperty.name.in_(names)).order_by(BinProperty.id)
+    return arr, [r[0] for r in _fetch(session, src)]
 
 
 def curve_rows(session: Session, kinds: Iterable[str]) -> list[tuple[int, dict[str, Any]]]:
