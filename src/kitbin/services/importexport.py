@@ -431,9 +431,16 @@ def _conditions(row: _Row) -> dict[str, float]:
             raise row.fail('conditions must map names to numbers, e.g. {"freq": 100000}')
         return {str(k): float(v) for k, v in data.items()}
     try:
-        return inputs.parse_conditions([p for p in text.split(";") if p.strip()])
+        return dict(_conditions_text(text))
     except QuantityError as e:
         raise row.fail(e.msg) from None
+
+
+@lru_cache(maxsize=1024)
+def _conditions_text(text: str) -> tuple[tuple[str, float], ...]:
+    """``freq=100kHz;temp=25degC`` parsed once per distinct text (files repeat them)."""
+    parsed = inputs.parse_conditions([p for p in text.split(";") if p.strip()])
+    return tuple(parsed.items())
 
 
 def _taken_at(row: _Row, now: dt.datetime) -> dt.datetime:
