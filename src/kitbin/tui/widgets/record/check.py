@@ -111,7 +111,8 @@ def check_delta(text: str) -> Check:
 
 
 def reading_items(pairs: Sequence[tuple[str, str]]) -> tuple[list[str], list[str]]:
-    """(items, problems) from (quantity text, value text) rows; empty rows are skipped.
+    """(items, problems) from (quantity text, value text) rows; rows without a value
+    are skipped.
 
     ``items`` are ``QUANTITY=VALUE`` texts for
     :func:`kitbin.services.inventory.record_readings`; any problem means nothing
@@ -120,8 +121,8 @@ def reading_items(pairs: Sequence[tuple[str, str]]) -> tuple[list[str], list[str
     items: list[str] = []
     problems: list[str] = []
     for n, (qtext, vtext) in enumerate(pairs, start=1):
-        if not qtext.strip() and not vtext.strip():
-            continue
+        if not vtext.strip():
+            continue  # a quantity offered but left without a value records nothing
         q = check_quantity(qtext)
         if not q.ok:
             problems.append(f"row {n}: {q.message or 'name the quantity'}")

@@ -1,0 +1,76 @@
+"""The recording forms' as-you-type checks (plain functions)."""
+
+from __future__ import annotations
+
+import pytest
+
+from kitbin.tui.app import error_line
+from kitbin.tui.widgets.record.capture_form import read_form
+from kitbin.tui.widgets.record.check import (
+    check_conditions,
+    check_delta,
+    check_quantity,
+    check_specimen,
+    check_value,
+    reading_items,
+)
+from kitbin.errors import QuantityError
+
+
+def test_quantity_names_and_aliases():
+    assert check_quantity("L").value == "inductance"
+    assert check_quantity("isat").value == "isat_20"
+    assert check_quantity("").ok is None
+    assert check_quantity("flux").ok is False
+    assert check_quantity("rise_load").ok is False  # derived, never recorded
+
+
+def test_value_checked_against_the_quantity_dimension():
+    ok = check_value("inductance", "9.6uH")
+    assert ok.ok and ok.value == "inductance=9.6uH" and "9.60 µH" in ok.message
+    assert check_value("dcr", "31mohm").ok
+    bound = check_value("isat_20", ">=3A")
+    assert bound.ok and bound.value == "isat_20>=3A" and bound.message.startswith("≥")
+    wrong = check_value("inductance", "10uF")
+    assert wrong.ok is False and "capacitance" in wrong.message
+    assert check_value(None, "3A").ok is False
+    assert check_value("inductance", "").ok is None
+
+
+def test_reading_items_all_or_nothing():
+    items, problems = reading_items([("L", "9.6uH"), ("dcr", "31mohm"), ("", "")])
+    assert items == ["inductance=9.6uH", "dcr=31mohm"] and problems == []
+    items, problems = reading_items([("L", "9.6uH"), ("dcr", "2A")])
+    assert problems and problems[0].startswith("row 2")
+    assert reading_items([("", ""), ("dcr", "")])[1] == [
+        "nothing to record: give a quantity and a value"
+    ]
+    assert reading_items([("", "3A")])[1] == ["row 1: name the quantity"]
+
+
+def test_specimen_conditions_and_delta():
+    assert check_specimen("3").ok and check_specimen("0").ok is False
+    c = check_conditions("freq=100kHz temp=25degC")
+    assert c.ok and "100 kHz" in c.message
+    assert check_conditions("freq=3A").ok is False
+    assert check_delta("+10").value == "10" and check_delta("-3").ok
+    assert check_delta("0").ok is False and check_delta("x").ok is False
+
+
+def test_capture_form_reads_parameters():
+    form, problems = read_form(
+        "ramp", {"file": "a.csv", "sense": "0.1ohm", "vl": "9V", "r_loop": "0.25ohm"}
+    )
+    assert problems == [] and form.ramp.sense_ohm == pytest.approx(0.1)
+    assert form.ramp.r_loop_ohm == pytest.approx(0.25)
+    _, problems = read_form("ramp", {"file": "a.csv", "sense": "9V"})
+    assert any("sense" in p for p in problems)
+    form, problems = read_form("heat", {"file": "h.tsv", "current": "1.5A"})
+    assert form.heat.current_A == pytest.approx(1.5) and form.heat.rise_K == 40.0
+    assert read_form("heat", {"file": ""})[1]
+
+
+def test_error_line_is_one_line_without_traceback():
+    assert error_line(QuantityError("bad value", "try 4.7uH")) == "bad value (try 4.7uH)"
+    line = error_line(RuntimeError("boom\nsecond line"))
+    assert line == "unexpected RuntimeError: boom"
