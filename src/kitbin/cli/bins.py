@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import functools
 from typing import Annotated, Any
 
 import typer
@@ -18,6 +19,17 @@ def _fmt(value: float | None, quantity: str | None) -> str:
 
     kind = QUANTITIES.get(quantity)
     return format_quantity(value, kind.dimension if kind else quantity)
+
+
+def _condition(name: str, value: float) -> str:
+    """``freq=100 kHz``: a test condition with its unit when the name is known."""
+    from kitbin.services.inputs import CONDITIONS
+    from kitbin.units import format_quantity
+
+    dimension = CONDITIONS.get(name)
+    if dimension is None or not isinstance(value, (int, float)):
+        return f"{name}={value}"
+    return f"{name}={format_quantity(float(value), dimension)}"
 
 
 def _tol(data: dict[str, Any]) -> str:
@@ -60,6 +72,13 @@ def _bin_options() -> dict[str, Any]:
         ),
         "notes": typer.Option(None, "--notes", help="Free text."),
     }
+
+
+def _add_row(table, *cells: str) -> None:
+    """Add a table row; cells are shown as typed (no rich markup in user text)."""
+    from rich.markup import escape
+
+    table.add_row(*(escape(c) for c in cells))
 
 
 def register(app: typer.Typer) -> None:
@@ -192,11 +211,12 @@ def register(app: typer.Typer) -> None:
 
         table = Table(title=f"Bins ({len(bins)})", title_justify="left")
         for column in ("label", "kind", "nominal", "package", "kit", "location"):
-            table.add_column(column)
+            table.add_column(column, no_wrap=column in ("label", "kind", "nominal"))
         for column in ("qty", "reserved", "readings"):
             table.add_column(column, justify="right")
         for b in bins:
-            table.add_row(
+            _add_row(
+                table,
                 b["label"],
                 b["kind"],
                 _nominal(b),
@@ -233,10 +253,12 @@ def register(app: typer.Typer) -> None:
 
 
 def _print_show(data: dict[str, Any]) -> None:
+    from rich.markup import escape
     from rich.table import Table
 
     out = console()
-    out.print(f"[bold]{data['label']}[/bold]  {data['kind']}  {_nominal(data)}".rstrip())
+    say = functools.partial(out.print, markup=False, soft_wrap=True)
+    out.print(f"[bold]{escape(data['label'])}[/bold]  {data['kind']}  {_nominal(data)}".rstrip())
     facts = [
         ("kit", data["kit"]),
         ("marking", data["marking"]),
@@ -247,22 +269,23 @@ def _print_show(data: dict[str, Any]) -> None:
     ]
     for name, value in facts:
         if value:
-            out.print(f"  {name:<9} {value}")
+            say(f"  {name:<9} {value}")
     if data["properties"]:
-        out.print("properties")
+        say("properties")
         for p in data["properties"]:
-            out.print(f"  {p['name']:<13} {_fmt(p['value'], p['name']):<12} ({p['source']})")
-    out.print("evidence")
+            say(f"  {p['name']:<13} {_fmt(p['value'], p['name']):<12} ({p['source']})")
+    say("evidence")
     for ev in data["evidence"].values():
-        out.print(f"  {ev['text']}")
+        say(f"  {ev['text']}")
     if data["readings"]:
         table = Table(title="readings", title_justify="left")
         for column in ("quantity", "value", "specimen", "conditions", "method", "taken"):
             table.add_column(column)
         for r in data["readings"]:
             bound = "≥ " if r["bound"] == ">=" else ""
-            conditions = ", ".join(f"{k}={v:g}" for k, v in r["conditions"].items())
-            table.add_row(
+            conditions = ", ".join(_condition(k, v) for k, v in r["conditions"].items())
+            _add_row(
+                table,
                 r["quantity"],
                 bound + _fmt(r["value"], r["quantity"]),
                 "" if r["specimen"] is None else str(r["specimen"]),
@@ -272,13 +295,13 @@ def _print_show(data: dict[str, Any]) -> None:
             )
         out.print(table)
     if data["captures"]:
-        out.print("captures")
+        say("captures")
         for c in data["captures"]:
-            out.print(f"  #{c['id']} {c['kind']} {c['file_name'] or ''} sha256 {c['sha256'][:12]}")
+            say(f"  #{c['id']} {c['kind']} {c['file_name'] or ''} sha256 {c['sha256'][:12]}")
     if data["moves"]:
-        out.print("stock moves")
+        say("stock moves")
         for m in data["moves"][-10:]:
-            out.print(
+            say(
                 f"  {(m['at'] or '')[:16].replace('T', ' ')}  {m['delta']:+d} -> {m['qty_after']}"
                 f"  {m['reason']}"
             )

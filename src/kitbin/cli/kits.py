@@ -7,6 +7,13 @@ import typer
 from kitbin.cli.common import console, print_json, state
 
 
+def _add_row(table, *cells: str) -> None:
+    """Add a table row; cells are shown as typed (no rich markup in user text)."""
+    from rich.markup import escape
+
+    table.add_row(*(escape(c) for c in cells))
+
+
 def register(app: typer.Typer) -> None:
     """Add the ``kit`` group to the root app."""
     kit_app = typer.Typer(help="Kits: assortments as bought.", no_args_is_help=True)
@@ -57,7 +64,8 @@ def register(app: typer.Typer) -> None:
         for column in ("kit", "source", "bought", "bins", "notes"):
             table.add_column(column, justify="right" if column == "bins" else "left")
         for kit in kits:
-            table.add_row(
+            _add_row(
+                table,
                 kit["name"],
                 kit["source"] or "",
                 kit["bought_on"] or "",
