@@ -29,6 +29,25 @@ def _upgrade_to(url: str, revision: str) -> None:
 
 def test_head_is_the_newest_revision() -> None:
     assert head_revision() == "0002"
+    # The quick text scan used on every command agrees with Alembic's own view.
+    assert store_engine._revisions() == {
+        rev.revision: rev.down_revision for rev in store_engine._script().walk_revisions()
+    }
+    assert head_revision() == store_engine._script().get_current_head()
+
+
+def test_opening_a_current_database_does_not_import_alembic(tmp_path: Path) -> None:
+    import subprocess
+    import sys
+
+    path = tmp_path / "inv.sqlite"
+    init_database(str(path))
+    code = (
+        "import sys; from kitbin.store import open_store; "
+        f"open_store({str(path)!r}).close(); print('alembic' in sys.modules)"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
 
 
 def test_a_fresh_database_at_head_matches_the_models(db_url: str) -> None:
