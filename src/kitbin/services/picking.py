@@ -199,6 +199,19 @@ def build_sheet(
             "roles: " + ", ".join(sorted(known_roles)),
         )
     chosen = [_choose_role(rm, m.spec, use, boards) for rm in m.roles.values()]
+    no_divider = m.divider is not None and m.divider.result is None
+    if (no_divider or any(c.bin_id is None for c in chosen)) and boards > 1:
+        # nothing has enough parts for every board: take the best bin that passes for
+        # one board, and show the shortfall rather than leave the role empty
+        m1 = match_plan(store, plan, top=1, boards=1)
+        if no_divider and m1.divider is not None and m1.divider.result is not None:
+            m.divider = m1.divider
+        for i, c in enumerate(chosen):
+            if c.bin_id is None and c.role in m1.roles:
+                alt = _choose_role(m1.roles[c.role], m1.spec, use, boards)
+                if alt.bin_id is not None:
+                    alt.note = f"not enough for {boards} boards in any bin; {alt.note}"
+                    chosen[i] = alt
     with store.transaction() as session:
         if m.divider is not None:
             labels = [use[k] for k in DIVIDER_LINES if k in use]

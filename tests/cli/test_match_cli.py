@@ -1,0 +1,99 @@
+"""``kitbin match`` end to end on a small hand-made inventory (tests/cli/match_helpers.py).
+
+Hand-worked numbers for the plan (buck 12 V -> 5 V, 1 A, 500 kHz, VD 0.4 V):
+* smallest inductance for r = 0.3 (REFERENCES 2, rearranged with the diode drop,
+  the power stage's l_min): D = (5 + 0.4)/(12 + 0.4) = 0.4355, dI = 0.3 A ->
+  L >= (12 - 5) x 0.4355 / (500e3 x 0.3) = 20.3 uH. L-A (22 uH) passes, L-E (10 uH) fails.
+* divider (REFERENCES 7): 0.800 V x (1 + 52.5 k / 10.0 k) = 5.000 V from the measured
+  resistors; their evidence is a point, so the band is the reference's +-1 %:
+  4.950 ... 5.050 V.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+from inventory_helpers import snapshot
+from match_helpers import build, copy_of, kb
+
+
+@pytest.fixture(scope="module")
+def template(tmp_path_factory: pytest.TempPathFactory) -> Path:
+    path = tmp_path_factory.mktemp("match") / "inv.sqlite"
+    build(path)
+    return path
+
+
+@pytest.fixture
+def db(template: Path, tmp_path: Path) -> Path:
+    return copy_of(template, tmp_path / "inv.sqlite")
+
+
+def test_json_shape_and_order(db: Path) -> None:
+    r = kb(db, "match", "bench-5v", "--json")
+    assert r.exit_code == 0, r.output
+    data = json.loads(r.stdout)
+    assert set(data) >= {"roles", "divider"}
+    ind = data["roles"]["inductor"]
+    # L-A verified; L-B only ">= 1.2 A" below its need -> unverified; L-E fails on L.
+    assert [row["bin"] for row in ind] == ["L-A", "L-B", "L-E"]
+    assert [row["verdict"] for row in ind] == ["verified", "unverified", "fails"]
+    for row in ind:
+        assert set(row) >= {"bin", "verdict", "score", "checks"}
+        for c in row["checks"]:
+            assert set(c) >= {"name", "required", "have", "grade", "status", "margin"}
+    l_check = next(c for c in ind[0]["checks"] if c["name"] == "inductance")
+    assert l_check["required"] == pytest.approx(7 * (5.4 / 12.4) / (500e3 * 0.3), rel=2e-3)
+    assert l_check["status"] == "pass" and l_check["grade"] == "measured"
+    lb = next(c for c in ind[1]["checks"] if c["name"] == "isat_20 vs own peak")
+    assert lb["status"] == "unverified" and lb["have"] == pytest.approx(1.2)
+    div = data["divider"]
+    assert div["rtop"] == "R-TOP" and div["rbottom"] == "R-BOT"
+    assert div["vout_V"] == pytest.approx(5.000, abs=1e-9)
+    assert div["error_pct"] == pytest.approx(0.0, abs=1e-9)
+    assert div["vout_band_V"] == [pytest.approx(4.95), pytest.approx(5.05)]
+
+
+def test_one_role_and_top(db: Path) -> None:
+    r = kb(db, "match", "bench-5v", "--role", "inductor", "--top", "1", "--json")
+    assert r.exit_code == 0, r.output
+    data = json.loads(r.stdout)
+    assert list(data["roles"]) == ["inductor"] and len(data["roles"]["inductor"]) == 1
+    assert data["divider"] is None
+
+
+def test_text_tables(db: Path) -> None:
+    r = kb(db, "match", "bench-5v", "--top", "2")
+    assert r.exit_code == 0, r.output
+    assert "inductor" in r.stdout and "L-A" in r.stdout and "verified" in r.stdout
+    assert "feedback divider" in r.stdout and "R-TOP" in r.stdout
+
+
+def test_match_writes_nothing(db: Path) -> None:
+    before = snapshot(db)
+    assert kb(db, "match", "bench-5v").exit_code == 0
+    assert snapshot(db) == before
+
+
+@pytest.mark.parametrize(
+    ("args", "code", "words"),
+    [
+        (["match", "no-such-plan"], 4, "no plan named 'no-such-plan'"),
+        (["match", "bench-5v", "--role", "flux_capacitor"], 4, "has no role 'flux_capacitor'"),
+    ],
+)
+def test_bad_input_is_one_line(db: Path, args: list[str], code: int, words: str) -> None:
+    before = snapshot(db)
+    r = kb(db, *args)
+    assert r.exit_code == code
+    assert r.stderr.startswith("kitbin: error: ") and words in r.stderr
+    assert len(r.stderr.strip().splitlines()) == 1
+    assert "Traceback" not in r.output
+    assert snapshot(db) == before
+
+
+def test_top_must_be_positive(db: Path) -> None:
+    r = kb(db, "match", "bench-5v", "--top", "0")
+    assert r.exit_code == 2
