@@ -17,6 +17,8 @@ def _private_dirs(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     """
     data = tmp_path / "user-data"
     monkeypatch.setenv("XDG_DATA_HOME", str(data))
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path / "user-config"))
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "user-cache"))
     monkeypatch.setenv("KITBIN_DB", str(tmp_path / "default-inventory.sqlite"))
     monkeypatch.setenv("MPLCONFIGDIR", str(tmp_path / "mpl"))
     monkeypatch.setenv("MPLBACKEND", "Agg")
