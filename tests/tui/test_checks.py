@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import pytest
 
+from kitbin.errors import QuantityError
 from kitbin.tui.app import error_line
 from kitbin.tui.widgets.record.capture_form import read_form
 from kitbin.tui.widgets.record.check import (
@@ -14,7 +15,6 @@ from kitbin.tui.widgets.record.check import (
     check_value,
     reading_items,
 )
-from kitbin.errors import QuantityError
 
 
 def test_quantity_names_and_aliases():

@@ -123,10 +123,14 @@ def test_analyse_a_demo_capture_and_save_it(demo_db: str) -> None:
             await _shelf_ready(app, pilot)
             await pilot.press("slash", *"L-04", "enter", "c")
             await _until(pilot, lambda: _screen(app, "CaptureScreen"))
-            await pilot.press(*_demo_capture("L-05_switching_ramps.csv"))
-            for field, text in (("sense", "0.1ohm"), ("vl", "9V"), ("r_loop", "0.25ohm")):
-                await pilot.click(f"#capture-{field}")
-                await pilot.press(*text)
+            fields = {
+                "file": _demo_capture("L-05_switching_ramps.csv"),
+                "sense": "0.1ohm",
+                "vl": "9V",
+                "r_loop": "0.25ohm",
+            }
+            for field, text in fields.items():
+                app.screen.query_one(f"#capture-{field}").value = text
             await pilot.press("ctrl+a")
             await _until(pilot, lambda: app.screen.analysed is not None)
             results = str(app.screen.query_one("#capture-results").content)
@@ -154,11 +158,11 @@ def test_plan_ranked_export_and_reserve(demo_db: str, tmp_path: Path) -> None:
             await _until(pilot, lambda: _screen(app, "PlanScreen"))
             await pilot.press("n")
             await _until(pilot, lambda: _screen(app, "NewPlanScreen"))
-            fields = ["t5v", "buck", "11..15V", "5V", "1A", "500kHz", "", "0.8V"]
-            for text in fields:
-                await pilot.press(*text, "enter")
+            await pilot.press(*"t5v", "enter", *"buck", "enter")  # typed, enter moves on
+            fields = {"vin": "11..15V", "vout": "5V", "iout": "1A", "fsw": "500kHz", "vref": "0.8V"}
+            for field, text in fields.items():
+                app.screen.query_one(f"#plan-field-{field}").value = text
             await pilot.press("ctrl+s")
-            plans = app.screen_stack[-1] if _screen(app, "PlanScreen") else None
             await _until(pilot, lambda: _screen(app, "PlanScreen") and app.screen.page is not None)
             plans = app.screen
             ranked = plans.query_one("#plan-ranked")

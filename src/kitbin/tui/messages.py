@@ -20,12 +20,16 @@ class StoreOpened(Message):
 
 
 class ShelfLoaded(Message):
-    """Every bin was read and shaped (``rows``: list of ShelfRow; ``seconds``: load time)."""
+    """Every bin was read and shaped (``rows``: list of ShelfRow; ``evidence``: a
+    :class:`kitbin.services.ui_support.ShelfEvidence`; ``seconds``: load time)."""
 
-    def __init__(self, rows: list[Any], kits: list[dict[str, Any]], seconds: float) -> None:
+    def __init__(
+        self, rows: list[Any], kits: list[dict[str, Any]], evidence: Any, seconds: float
+    ) -> None:
         super().__init__()
         self.rows = rows
         self.kits = kits
+        self.evidence = evidence
         self.seconds = seconds
 
 

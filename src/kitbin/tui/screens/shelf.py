@@ -65,6 +65,7 @@ class ShelfScreen(KitbinScreen):
         super().__init__()
         self.rows: list[ShelfRow] = []
         self.kits: list[dict[str, Any]] = []
+        self.evidence: Any = None
         self.sort_column = "label"
         self.descending = False
         self.order: list[int] = []
@@ -105,14 +106,16 @@ class ShelfScreen(KitbinScreen):
         from kitbin.tui.widgets.shelf.rows import shape_row
 
         start = time.perf_counter()
-        rows = [shape_row(d) for d in ui_support.shelf_rows(store)]
+        data, evidence = ui_support.shelf_rows(store)
+        rows = [shape_row(d) for d in data]
         kits = inventory.list_kits(store)
-        self.post_message(ShelfLoaded(rows, kits, time.perf_counter() - start))
+        self.post_message(ShelfLoaded(rows, kits, evidence, time.perf_counter() - start))
 
     @on(ShelfLoaded)
     def _loaded(self, message: ShelfLoaded) -> None:
         self.rows = message.rows
         self.kits = message.kits
+        self.evidence = message.evidence
         self.load_seconds = message.seconds
         self.order = sort_order(self.rows, self.sort_column, self.descending)
         grid = self.query_one(ShelfGrid)
@@ -215,7 +218,10 @@ class ShelfScreen(KitbinScreen):
         head += f" · {row.qty} on hand, {row.reserved} reserved"
         if row.kit:
             head += f" · {_escape(row.kit)}"
-        evidence = "; ".join(row.evidence_lines) or "no evidence"
+        lines = list(row.evidence_lines)
+        if not lines and self.evidence is not None and row.row >= 0:
+            lines = self.evidence.lines(row.row)
+        evidence = "; ".join(lines) or "no evidence"
         peek.update(head + "\n" + _escape(evidence))
 
     @on(ShelfGrid.Chosen)

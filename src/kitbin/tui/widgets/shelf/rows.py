@@ -75,8 +75,11 @@ class ShelfRow:
     haystack: str
     #: Dimension name -> the SI values a value term may match.
     values: dict[str, tuple[float, ...]] = field(default_factory=dict)
-    #: One line per key quantity, for the peek line under the grid.
+    #: One line per key quantity, for the peek line under the grid (empty when the
+    #: service describes them on demand).
     evidence_lines: tuple[str, ...] = ()
+    #: The row's index in the service's evidence tables (-1 when none).
+    row: int = -1
 
 
 def compact(value: float | None, dimension: str | None) -> str:
@@ -129,7 +132,8 @@ def shape_row(data: dict[str, Any]) -> ShelfRow:
         location=data.get("location") or "",
         haystack=" ".join(t for t in text_fields if t).lower(),
         values={k: tuple(v) for k, v in values.items()},
-        evidence_lines=tuple(e["text"] for e in data.get("evidence", ())),
+        evidence_lines=tuple(e["text"] for e in data.get("evidence", ()) if e.get("text")),
+        row=int(data.get("row", -1)),
     )
 
 
