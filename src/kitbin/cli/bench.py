@@ -87,7 +87,8 @@ def register(app: typer.Typer) -> None:
         if params.sense_ohm <= 0:
             raise KitbinError("--sense: the sense resistance must be positive")
         path = Path(file)
-        content = bench.read_file(path)
+        # a path lets pandas parse a large capture on several threads; saving needs the bytes
+        content = bench.read_file(path) if save else path
         if save:
             from kitbin.store import open_store
 

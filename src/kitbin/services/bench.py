@@ -112,6 +112,16 @@ class RampRun:
 # -- reading files --------------------------------------------------------------------
 
 
+def _sha256(content: bytes | Path) -> str:
+    if isinstance(content, Path):
+        try:
+            with content.open("rb") as handle:
+                return hashlib.file_digest(handle, "sha256").hexdigest()
+        except OSError as e:
+            raise CaptureError(f"{content}: cannot read ({e.strerror})") from None
+    return hashlib.sha256(content).hexdigest()
+
+
 def read_file(path: str | Path) -> bytes:
     """The bytes of a capture file, or a :class:`CaptureError` naming it."""
     p = Path(path)
@@ -135,8 +145,13 @@ def _key(text: str | None) -> str | int | None:
 # -- ramp -------------------------------------------------------------------------------
 
 
-def analyse_ramp_bytes(content: bytes, params: RampParams, *, source: str = "capture") -> RampRun:
+def analyse_ramp_bytes(
+    content: bytes | Path, params: RampParams, *, source: str = "capture"
+) -> RampRun:
     """Read and analyse a current-ramp capture (no database).
+
+    ``content`` is the file's bytes, or its path: a path lets pandas parse a
+    large file on several threads (see :func:`kitbin.measure.reader.read_capture`).
 
     Raises
     ------
@@ -233,7 +248,7 @@ def ramp_summary(run: RampRun) -> dict[str, Any]:
 
 
 def ramp(
-    content: bytes,
+    content: bytes | Path,
     params: RampParams,
     *,
     label: str,
@@ -251,13 +266,14 @@ def ramp(
     if run is None:
         run = analyse_ramp_bytes(content, params, source=file_name)
     data = ramp_summary(run)
-    digest = hashlib.sha256(content).hexdigest()
+    digest = _sha256(content)
     data.update({"bin": label, "file": file_name, "sha256": digest})
     data["capture_id"], data["readings"] = None, []
     if plot is not None:
         data["plot"] = str(plot_ramp(run, plot, title=f"{label}: {file_name}"))
     if store is not None:
-        cap_id, reading_ids = save_ramp(store, label, file_name, content, params, run, data)
+        raw = read_file(content) if isinstance(content, Path) else content
+        cap_id, reading_ids = save_ramp(store, label, file_name, raw, params, run, data)
         data["capture_id"], data["readings"] = cap_id, reading_ids
     return data
 
