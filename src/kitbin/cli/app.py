@@ -75,6 +75,7 @@ __import__("kitbin.cli.plans", fromlist=["register"]).register(app)
 __import__("kitbin.cli.match", fromlist=["register"]).register(app)
 __import__("kitbin.cli.pick", fromlist=["register"]).register(app)
 __import__("kitbin.cli.ui", fromlist=["register"]).register(app)
+__import__("kitbin.cli.backup", fromlist=["register"]).register(app)
 # -- end of registered command modules --
 
 
