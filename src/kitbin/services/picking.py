@@ -421,17 +421,18 @@ def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan
         session.add(pl)
         session.flush()
         for ln in sheet.lines:
-            bin_id = ids[ln.label]
             session.add(
                 PickLineRow(
                     pick_list_id=pl.id,
                     role=ln.role,
-                    bin_id=bin_id,
+                    bin_id=ids[ln.label],
                     qty_per_board=ln.qty_per_board,
                     qty_total=ln.qty_total,
                 )
             )
-            reserve(session, bin_id, ln.qty_total)
+        # bins in id order, as every transaction touching several bins must (no deadlock)
+        for ln in sorted(sheet.lines, key=lambda x: ids[x.label]):
+            reserve(session, ids[ln.label], ln.qty_total)
         return int(pl.id)
 
 
@@ -485,7 +486,8 @@ def take(store: Store, pick_id: int) -> dict[str, Any]:
         if not matchreads.set_pick_state(session, pick_id, "reserved", "picked"):
             raise StockError(f"pick list {pick_id} was changed by someone else; not picked")
         moves = []
-        for ln in pl.lines:
+        # bins in id order, as every transaction touching several bins must (no deadlock)
+        for ln in sorted(pl.lines, key=lambda x: (x.bin_id or 0, x.id)):
             if ln.bin_id is None:
                 continue
             res = consume_reserved(
@@ -514,7 +516,7 @@ def cancel(store: Store, pick_id: int) -> dict[str, Any]:
         if not matchreads.set_pick_state(session, pick_id, "reserved", "cancelled"):
             raise StockError(f"pick list {pick_id} was changed by someone else; not cancelled")
         released = []
-        for ln in pl.lines:
+        for ln in sorted(pl.lines, key=lambda x: (x.bin_id or 0, x.id)):
             if ln.bin_id is None:
                 continue
             res = release(session, ln.bin_id, ln.qty_total)
