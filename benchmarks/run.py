@@ -25,6 +25,7 @@ FIGURES = {
     "tui_shelf": "bench_tui",
     "import_100k_readings": "bench_import",
     "startup": "bench_startup",
+    "stage_stepping": "bench_stage",
 }
 
 
