@@ -137,11 +137,11 @@ def write_pulse_soft(rng: np.random.Generator) -> dict:
     model = InductorModel(l0_H=44e-6, knee_A=1.45, shape="smooth", p=3.0)
     v, r_loop, r_sense = 12.0, 0.4, 0.1
     t_on = on_time_for(model, v, r_loop, 2.2)
-    dt = 5e-9
+    dt = 1e-9
     t, i = pulse_current(
         model, v=v, r_loop=r_loop, t_on=t_on, dt=dt, t_lead=2e-6, t_tail=4e-6, v_off=12.0
     )
-    vs = scope(i * r_sense, rng, noise=0.0012, bits=8, full_scale=(-0.02, 0.28))
+    vs = scope(i * r_sense, rng, noise=0.0007, bits=8, full_scale=(-0.02, 0.28))
     name = "L-14_pulse_soft.dat"
     body = np.char.add(np.char.add(_fmt(t, 7), "  "), _fmt(vs, 5))
     lines = [f"% {HEADER}", "% columns: time in s, sense voltage in V (no header row)"]

@@ -320,7 +320,7 @@ def analyse_ramp(
         )
     l_pts = vl_pts / didt
     good = np.isfinite(l_pts) & (l_pts > 0)
-    i_pts, l_pts = i_pts[good], l_pts[good]
+    i_pts, l_pts, idx = i_pts[good], l_pts[good], idx[good]
     if i_pts.size < 8:
         raise CaptureError(f"{source}: too few usable points on the rising segments")
     if measured_vl and float(np.ptp(vl_pts)) > 0.1 * float(np.median(vl_pts)):
@@ -341,8 +341,14 @@ def analyse_ramp(
     else:
         l_window = l_pts[i_pts <= (centres[min(2, centres.size - 1)])]
         w_hi = float(centres[min(2, centres.size - 1)])
-    l0 = float(np.median(l_window))
-    spread = float(1.4826 * np.median(np.abs(l_window - l0)) / l0)
+    l0_points = float(np.median(l_window))
+    spread = float(1.4826 * np.median(np.abs(l_window - l0_points)) / l0_points)
+    # L is flat in the window: one straight-line fit per ramp over all its samples
+    # there has ~√(window/m) less noise than the pointwise slopes; median over ramps
+    l0_lines = _l0_line_fits(
+        t, current, idx, i_pts, starts, (w_lo, w_hi), vl_arr if measured_vl else v_const, r_loop, m
+    )
+    l0 = l0_lines if l0_lines is not None else l0_points
     halves = np.array_split(np.sort(i_pts[in_window]), 2) if in_window.sum() >= 10 else []
     if len(halves) == 2:
         l_a = float(np.median(l_pts[in_window & (i_pts <= halves[0][-1])]))
@@ -355,7 +361,9 @@ def analyse_ramp(
         )
 
     # 6. Isat at each drop, from the binned curve; never extrapolated
-    ratio = _median3(medians) / l0
+    # a saturating core's incremental L does not rise with bias: a non-increasing
+    # (isotonic) fit of the bin medians pools noise before the crossing is looked for
+    ratio = _decreasing_fit(medians, counts) / l0
     isat: dict[int, float | None] = {}
     first = int(np.searchsorted(centres, w_lo))
     for drop in drops:
@@ -385,6 +393,50 @@ def analyse_ramp(
         quality=quality,
         drops=tuple(drops),
     )
+
+
+def _l0_line_fits(
+    t: np.ndarray,
+    current: np.ndarray,
+    idx: np.ndarray,
+    i_pts: np.ndarray,
+    starts: np.ndarray,
+    window: tuple[float, float],
+    v_l: float | np.ndarray,
+    r_loop: float,
+    m: int,
+    most: int = 64,
+) -> float | None:
+    """Median over ramps of V_L / (slope of a least-squares line through the window).
+
+    At most ``most`` ramps, evenly spread, are fitted (bounded cost on long captures).
+    None when no ramp has enough samples inside the window.
+    """
+    inside = (i_pts >= window[0]) & (i_pts <= window[1])
+    if not inside.any():
+        return None
+    seg = np.searchsorted(starts, idx[inside], side="right") - 1
+    pts = idx[inside]
+    last = np.full(starts.size, -1)
+    np.maximum.at(last, seg, pts)
+    lo = np.full(starts.size, np.iinfo(np.int64).max)
+    np.minimum.at(lo, seg, pts)
+    usable = np.flatnonzero((last >= 0) & (last - lo >= max(8, 2 * m)))
+    if usable.size == 0:
+        return None
+    if usable.size > most:
+        usable = usable[np.linspace(0, usable.size - 1, most).round().astype(int)]
+    values = []
+    for k in usable:
+        a, b = int(lo[k]), int(last[k]) + 1
+        tt = t[a:b] - t[a:b].mean()
+        ii = current[a:b]
+        slope = float(tt @ (ii - ii.mean())) / float(tt @ tt)
+        v = float(np.mean(v_l[a:b])) if isinstance(v_l, np.ndarray) else float(v_l)
+        v -= float(ii.mean()) * r_loop
+        if slope > 0 and v > 0:
+            values.append(v / slope)
+    return float(np.median(values)) if values else None
 
 
 def _running_sum(values: np.ndarray) -> np.ndarray:
@@ -476,6 +528,18 @@ def _binned_median(
     medians = 0.5 * (ys[lo_k] + ys[hi_k])
     centres = x_min + (np.flatnonzero(filled) + 0.5) * width
     return centres, medians, counts[filled]
+
+
+def _decreasing_fit(values: np.ndarray, weights: np.ndarray) -> np.ndarray:
+    """Weighted least-squares non-increasing fit (pool-adjacent-violators), per bin."""
+    blocks: list[list[float]] = []  # [weighted mean, weight, bins]
+    for v, w in zip(values.tolist(), weights.tolist(), strict=True):
+        blocks.append([v, float(w), 1])
+        while len(blocks) > 1 and blocks[-2][0] < blocks[-1][0]:
+            v2, w2, n2 = blocks.pop()
+            v1, w1, n1 = blocks[-1]
+            blocks[-1] = [(v1 * w1 + v2 * w2) / (w1 + w2), w1 + w2, n1 + n2]
+    return np.repeat([b[0] for b in blocks], [b[2] for b in blocks])
 
 
 def _median3(values: np.ndarray) -> np.ndarray:
