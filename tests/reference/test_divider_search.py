@@ -22,6 +22,7 @@ from eseries import E24, E96, E192, erange
 from kitbin.match.divider import (
     StockResistor,
     best_divider,
+    best_leg_within,
     divider_band,
     divider_vout,
     nearest_leg,
@@ -217,3 +218,34 @@ def test_bad_input() -> None:
         best_divider(stock, 0.8, 3.3, connections=("triangle",))
     assert best_divider(stock, 0.8, 3.3, rbot_range=(1.0, 10.0)) is None
     assert best_divider([], 0.8, 3.3) is None
+
+
+def test_best_leg_within_a_window_matches_enumeration() -> None:
+    # Reference: every single, series and parallel leg enumerated with itertools; the
+    # chosen leg must fit the window with its whole tolerance interval and have the
+    # fewest parts among those that fit. Rset window for Ilim 1.4375 ... 1.58 A with a
+    # 100 kV gain: 63.3 ... 69.6 kOhm.
+    lo, hi = 100e3 / 1.58, 100e3 / 1.4375
+    for values, parts in (([10e3, 22e3, 33e3, 47e3, 68e3, 100e3], 1),
+                          ([10e3, 22e3, 33e3, 47e3, 100e3], 2)):  # fmt: skip
+        stock = _stock(values, tol=0.01, available=4)
+        leg = best_leg_within(stock, lo, hi)
+        assert leg is not None and lo <= leg.low and leg.high <= hi
+        fits = [1 for v in values if lo <= 0.99 * v and 1.01 * v <= hi]
+        for i, j in itertools.combinations_with_replacement(range(len(values)), 2):
+            a, b = values[i], values[j]
+            for v in (a + b, a * b / (a + b)):
+                if lo <= 0.99 * v and 1.01 * v <= hi:
+                    fits.append(2)
+        assert len(leg.parts) == min(fits) == parts
+    # 5 % parts cannot fit a window narrower than +-5 %: the nearest miss is returned
+    wide = best_leg_within(_stock([33e3, 68e3], tol=0.05), lo, hi)
+    assert wide is not None and not (lo <= wide.low and wide.high <= hi)
+
+
+def test_best_leg_within_reports_the_nearest_miss() -> None:
+    stock = _stock([10e3], tol=0.05, available=1)
+    leg = best_leg_within(stock, 63e3, 70e3, connections=("single",))
+    assert leg is not None and leg.parts == ("R-000",)
+    with pytest.raises(ValueError):
+        best_leg_within(stock, 5.0, 1.0)

@@ -85,6 +85,16 @@ def _print_divider(con: Any, d: Any) -> None:
         con.print(f"  {_check_cell(c)}")
 
 
+def _print_network(con: Any, n: Any) -> None:
+    from rich.markup import escape
+
+    style = _VERDICT_STYLE.get(n.verdict, "")
+    con.print(f"[bold]set resistor from two parts[/] — [{style}]{n.verdict}[/]")
+    con.print(f"  {escape(n.note)}")
+    for c in n.checks:
+        con.print(f"  {_check_cell(c)}")
+
+
 def register(app: typer.Typer) -> None:
     """Add ``kitbin match`` to the root app."""
 
@@ -118,6 +128,8 @@ def register(app: typer.Typer) -> None:
         con.print(f"[bold]{result.plan}[/]: {_summary(result.spec)}")
         for rm in result.roles.values():
             _print_role(con, rm)
+        if result.set_network is not None:
+            _print_network(con, result.set_network)
         if result.divider is not None:
             _print_divider(con, result.divider)
 

@@ -478,3 +478,43 @@ def nearest_leg(
     parts = (legs.b >= 0).astype(int)
     i = int(np.lexsort((parts, np.round(rel, 12)))[0])
     return _leg(stock, legs, i)
+
+
+def best_leg_within(
+    stock: Sequence[StockResistor] | StockArrays,
+    low: float,
+    high: float,
+    *,
+    connections: Sequence[str] = CONNECTIONS,
+    boards: int = 1,
+) -> Leg | None:
+    """The leg whose whole evidence interval fits a resistance window, Ω.
+
+    For a set resistor (e.g. Rset = ilim_gain / Ilim with Ilim in a window): among
+    the legs (single, series, parallel) whose [low, high] lies inside [``low``,
+    ``high``], the one with the fewest parts, then nearest the window's geometric
+    middle. When none fits, the leg that leaves the window least (relative to the
+    middle), so the caller can say by how much.
+
+    Raises
+    ------
+    ValueError
+        When the window is empty or not positive.
+    """
+    if not 0 < low <= high:
+        raise ValueError(f"resistance window {low!r} ... {high!r} is empty")
+    stock = StockArrays.of(stock)
+    legs = _build_legs(stock, connections, boards)
+    if legs.value.size == 0:
+        return None
+    mid = math.sqrt(low * high)
+    parts = (legs.b >= 0).astype(int)
+    off = np.abs(np.log(legs.value / mid))
+    inside = (legs.low >= low) & (legs.high <= high)
+    if inside.any():
+        idx = np.flatnonzero(inside)
+        i = int(idx[np.lexsort((off[idx], parts[idx]))[0]])
+    else:
+        excess = np.maximum(low - legs.low, legs.high - high) / mid
+        i = int(np.lexsort((parts, np.round(excess, 12)))[0])
+    return _leg(stock, legs, i)

@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 
 from kitbin.errors import KitbinError, NotFoundError, SpecError
-from kitbin.match.divider import DividerResult, StockArrays, best_divider
+from kitbin.match.divider import DividerResult, Leg, StockArrays, best_divider
 from kitbin.match.evidence import GRADES, grade_of_source
 from kitbin.match.evidence_table import EvidenceTable, evidence_table
 from kitbin.match.ranking import RankedRow, rank, status_counts
@@ -251,6 +251,17 @@ class MatchResult:
     roles: dict[str, RoleMatch]
     divider: DividerMatch | None
     notes: tuple[str, ...] = ()
+    set_network: NetworkMatch | None = None
+
+
+@dataclass
+class NetworkMatch:
+    """A set resistor made of two stocked resistors, when no single one passes."""
+
+    leg: Leg
+    checks: tuple[Check, ...]
+    verdict: str
+    note: str
 
 
 def match_plan(
@@ -310,7 +321,66 @@ def match_plan(
             divider = choose_divider(spec, d, cands, boards=boards)
             continue
         roles[d.role] = judge_role(spec, d, stock, top=top, boards=boards)
-    return MatchResult(plan_id, plan_name, spec, roles, divider)
+    network = None
+    rm = roles.get("set_resistor")
+    if rm is not None and (rm.best is None or rm.best.verdict != "verified"):
+        _, cands = stock.subset(rm.kinds)
+        d = next(x for x in wanted if x.role == "set_resistor")
+        network = choose_set_network(d, cands, boards=boards)
+        order = ("verified", "unverified", "fails")
+        single = order.index(rm.best.verdict) if rm.best is not None else 3
+        if network is not None and order.index(network.verdict) >= single:
+            network = None  # the best single resistor is as good: keep one part
+    return MatchResult(plan_id, plan_name, spec, roles, divider, set_network=network)
+
+
+def choose_set_network(demand: Demand, cands: Candidates, *, boards: int) -> NetworkMatch | None:
+    """Two stocked resistors in series or parallel whose worst case fits the set-resistor
+    window (:func:`kitbin.match.divider.best_leg_within`)."""
+    from kitbin.match.divider import best_leg_within
+    from kitbin.match.evidence import weakest
+    from kitbin.match.ranking import VERDICTS
+
+    lo = max((c.limit for c in demand.constraints if c.op == ">="), default=None)
+    hi = min((c.limit for c in demand.constraints if c.op == "<="), default=None)
+    if lo is None or hi is None or not 0 < lo <= hi:
+        return None
+    stock = resistor_stock(cands, boards)
+    leg = best_leg_within(stock, lo, hi, boards=boards)
+    if leg is None:
+        return None
+    grades = dict(zip(stock.labels, stock.grade, strict=True))
+    grade = weakest(grades.get(p, "unknown") for p in leg.parts)
+    checks = []
+    for c in demand.constraints:
+        have = leg.low if c.op == ">=" else leg.high
+        ok = c.holds(have)
+        side = " (low end)" if c.op == ">=" else " (high end)"
+        checks.append(
+            Check(
+                c.quantity + side,
+                c.quantity,
+                c.op,
+                c.limit,
+                have,
+                grade,
+                "pass" if ok else "fail",
+                c.margin(have),
+                c.reason,
+                c.source,
+            )
+        )
+    verdict = VERDICTS[0] if all(ch.status == "pass" for ch in checks) else VERDICTS[2]
+    from kitbin.units import format_quantity
+
+    def r(v: float) -> str:
+        return format_quantity(v, "resistance", 4)
+
+    note = (
+        f"{leg.describe()} ({leg.connection}) = {r(leg.value)}, worst case "
+        f"{r(leg.low)} … {r(leg.high)}; window {r(lo)} … {r(hi)}"
+    )
+    return NetworkMatch(leg, tuple(checks), verdict, note)
 
 
 def judge_role(
@@ -551,6 +621,20 @@ def match_dict(m: MatchResult) -> dict[str, Any]:
         "roles": {name: [row_dict(r) for r in rm.rows] for name, rm in m.roles.items()},
         "counts": {name: rm.counts for name, rm in m.roles.items()},
         "divider": divider_dict(m.divider) if m.divider is not None else None,
+        "set_resistor_network": network_dict(m.set_network) if m.set_network else None,
+    }
+
+
+def network_dict(n: NetworkMatch) -> dict[str, Any]:
+    """A two-resistor set resistor as JSON (parts, connection, value_ohm, band_ohm, ...)."""
+    return {
+        "parts": list(n.leg.parts),
+        "connection": n.leg.connection,
+        "value_ohm": n.leg.value,
+        "band_ohm": [n.leg.low, n.leg.high],
+        "verdict": n.verdict,
+        "note": n.note,
+        "checks": [check_dict(c) for c in n.checks],
     }
 
 

@@ -199,6 +199,9 @@ def build_sheet(
             "roles: " + ", ".join(sorted(known_roles)),
         )
     chosen = [_choose_role(rm, m.spec, use, boards) for rm in m.roles.values()]
+    if m.set_network is not None and "set_resistor" not in use:
+        chosen = [c for c in chosen if c.role != "set_resistor"]
+        net_labels = list(m.set_network.leg.parts)
     no_divider = m.divider is not None and m.divider.result is None
     if (no_divider or any(c.bin_id is None for c in chosen)) and boards > 1:
         # nothing has enough parts for every board: take the best bin that passes for
@@ -213,6 +216,19 @@ def build_sheet(
                     alt.note = f"not enough for {boards} boards in any bin; {alt.note}"
                     chosen[i] = alt
     with store.transaction() as session:
+        if m.set_network is not None and "set_resistor" not in use:
+            n = m.set_network
+            for label in dict.fromkeys(net_labels):
+                chosen.append(
+                    Chosen(
+                        "set_resistor",
+                        matchreads.bin_id_for_label(session, label),
+                        label,
+                        net_labels.count(label),
+                        n.verdict,
+                        f"{n.verdict}: no single resistor fits; {n.note}",
+                    )
+                )
         if m.divider is not None:
             labels = [use[k] for k in DIVIDER_LINES if k in use]
             if m.divider.result is not None:
