@@ -74,3 +74,12 @@ def test_error_line_is_one_line_without_traceback():
     assert error_line(QuantityError("bad value", "try 4.7uH")) == "bad value (try 4.7uH)"
     line = error_line(RuntimeError("boom\nsecond line"))
     assert line == "unexpected RuntimeError: boom"
+
+
+def test_plain_keeps_brackets_through_textual_markup():
+    from textual.content import Content
+
+    from kitbin.tui.markup import plain
+
+    text = "role 1/6 ([ and ] switch roles) [b]label[/b]"
+    assert Content.from_markup(plain(text)).plain == text

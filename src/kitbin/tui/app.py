@@ -16,6 +16,7 @@ from typing import Any, ClassVar
 from textual import on, work
 from textual.app import App
 from textual.binding import Binding, BindingType
+from textual.notifications import SeverityLevel
 from textual.worker import Worker, WorkerState
 
 from kitbin.errors import KitbinError
@@ -45,6 +46,18 @@ class KitbinApp(App[None]):
         super().__init__()
         self.db_url = db_url
         self.store: Any = None
+
+    def notify(
+        self,
+        message: str,
+        *,
+        title: str = "",
+        severity: SeverityLevel = "information",
+        timeout: float | None = None,
+        markup: bool = False,
+    ) -> None:
+        """A notification; kitbin's messages are plain text (no markup) by default."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
 
     def on_mount(self) -> None:
         from kitbin.tui.screens.shelf import ShelfScreen

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from textual.notifications import SeverityLevel
 from textual.screen import ModalScreen, Screen
 from textual.worker import Worker, WorkerState
 
@@ -19,6 +20,18 @@ def report_failed_worker(screen: Screen, event: Worker.StateChanged) -> bool:
 class KitbinScreen(Screen):
     """A full screen whose workers report failures as notifications."""
 
+    def notify(
+        self,
+        message: str,
+        *,
+        title: str = "",
+        severity: SeverityLevel = "information",
+        timeout: float | None = None,
+        markup: bool = False,
+    ) -> None:
+        """A notification; kitbin's messages are plain text (no markup) by default."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
+
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         if report_failed_worker(self, event):
             self.worker_failed(event.worker)
@@ -29,6 +42,18 @@ class KitbinScreen(Screen):
 
 class KitbinModal(ModalScreen):
     """A dialog whose workers report failures as notifications."""
+
+    def notify(
+        self,
+        message: str,
+        *,
+        title: str = "",
+        severity: SeverityLevel = "information",
+        timeout: float | None = None,
+        markup: bool = False,
+    ) -> None:
+        """A notification; kitbin's messages are plain text (no markup) by default."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         if report_failed_worker(self, event):

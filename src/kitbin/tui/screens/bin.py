@@ -11,6 +11,8 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import DataTable, Footer, Static, TabbedContent, TabPane
 from textual_plotext import PlotextPlot
 
+from kitbin.tui.markup import cells
+from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import BinLoaded
 from kitbin.tui.screens.base import KitbinScreen
 from kitbin.tui.widgets.bin.text import (
@@ -115,16 +117,16 @@ class BinScreen(KitbinScreen):
         readings = self.query_one("#bin-readings", DataTable)
         readings.clear()
         for r in page["readings"]:
-            readings.add_row(*reading_cells(r), key=str(r["id"]))
+            readings.add_row(*cells(reading_cells(r)), key=str(r["id"]))
         captures = self.query_one("#bin-captures", DataTable)
         captures.clear()
         for c in page["captures"]:
-            captures.add_row(*capture_cells(c), key=str(c["id"]))
+            captures.add_row(*cells(capture_cells(c)), key=str(c["id"]))
         self._show_capture_results(page["captures"][0] if page["captures"] else None)
         moves = self.query_one("#bin-moves", DataTable)
         moves.clear()
         for m in reversed(page["moves"]):
-            moves.add_row(*move_cells(m))
+            moves.add_row(*cells(move_cells(m)))
         self._draw_lcurve(page)
         heat = [c for c in page["captures"] if c["kind"] == "heat"]
         if heat:
@@ -220,9 +222,3 @@ class BinScreen(KitbinScreen):
         """Reload when this bin (or any, for None) changed."""
         if label in (None, self.label):
             self.action_reload()
-
-
-def _escape(text: str) -> str:
-    from rich.markup import escape
-
-    return escape(text)

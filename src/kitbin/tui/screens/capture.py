@@ -13,6 +13,7 @@ from textual.message import Message
 from textual.widgets import Footer, Input, Label, RadioButton, RadioSet, Static
 from textual_plotext import PlotextPlot
 
+from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import InventoryChanged
 from kitbin.tui.screens.base import KitbinModal
 from kitbin.tui.widgets.bin.text import l_curve, results_lines
@@ -199,9 +200,3 @@ class CaptureScreen(KitbinModal):
 
     def action_cancel(self) -> None:
         self.dismiss(False)
-
-
-def _escape(text: str) -> str:
-    from rich.markup import escape
-
-    return escape(text)

@@ -95,7 +95,7 @@ class HelpScreen(KitbinScreen):
         yield Footer(compact=True)
 
     def _text(self) -> str:
-        from rich.markup import escape
+        from kitbin.tui.markup import plain as escape
 
         lines = []
         current = None

@@ -10,6 +10,7 @@ from textual.binding import Binding, BindingType
 from textual.containers import Vertical
 from textual.widgets import DataTable, Footer, Static
 
+from kitbin.tui.markup import cells
 from kitbin.tui.screens.base import KitbinModal
 from kitbin.tui.widgets.shelf.kits import kit_term
 
@@ -33,13 +34,13 @@ class KitsScreen(KitbinModal):
             table: DataTable = DataTable(id="kits-table", cursor_type="row")
             table.add_columns("kit", "from", "bought", "bins")
             for k in self.kits:
-                table.add_row(
+                row = [
                     k["name"],
                     k.get("source") or "",
                     k.get("bought_on") or "",
                     k.get("bins") or 0,
-                    key=k["name"],
-                )
+                ]
+                table.add_row(*cells(row), key=k["name"])
             yield table
             if not self.kits:
                 yield Static("no kits yet: add one with `kitbin kit add NAME`", classes="hint")

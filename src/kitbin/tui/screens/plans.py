@@ -13,6 +13,8 @@ from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import DataTable, Footer, Input, Label, Static, TabbedContent, TabPane
 
+from kitbin.tui.markup import cells
+from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import InventoryChanged
 from kitbin.tui.screens.base import KitbinModal, KitbinScreen
 from kitbin.tui.widgets.plan.text import (
@@ -169,7 +171,7 @@ class PlanScreen(KitbinScreen):
         table = self.query_one("#plan-list", DataTable)
         table.clear()
         for p in self.plans:
-            table.add_row(p["name"], p.get("summary", ""), key=p["name"])
+            table.add_row(*cells([p["name"], p.get("summary", "")]), key=p["name"])
         status = f"{len(self.plans)} plans · enter evaluates one · n creates one"
         if not self.plans:
             status = "no plans yet: press n to create one"
@@ -204,7 +206,7 @@ class PlanScreen(KitbinScreen):
         corners = self.query_one("#plan-corners", DataTable)
         corners.clear()
         for c in plan.get("corners", ()):
-            corners.add_row(*corner_cells(c))
+            corners.add_row(*cells(corner_cells(c)))
         self.query_one("#plan-demands", Static).update(
             _escape("\n".join(demand_lines(plan.get("demands", {}))))
         )
@@ -254,7 +256,7 @@ class PlanScreen(KitbinScreen):
             return
         rm = m.roles[role]
         for row in rm.rows:
-            table.add_row(*ranked_cells(row), key=row.label)
+            table.add_row(*cells(ranked_cells(row)), key=row.label)
         counts = ", ".join(f"{k} {v}" for k, v in rm.counts.items())
         lines = [f"candidates: {counts}"] + [f"note: {n}" for n in rm.notes]
         if rm.rows:
@@ -514,9 +516,3 @@ class ExportScreen(KitbinModal):
 
 def _field_id(key: str) -> str:
     return "plan-field-" + key.lstrip("-")
-
-
-def _escape(text: str) -> str:
-    from rich.markup import escape
-
-    return escape(text)

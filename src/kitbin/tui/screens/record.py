@@ -10,6 +10,7 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Footer, Input, Label, Static
 
+from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import InventoryChanged, ReadingRecorded
 from kitbin.tui.screens.base import KitbinModal
 from kitbin.tui.widgets.record.check import (
@@ -195,9 +196,3 @@ class RecordScreen(KitbinModal):
 
     def action_cancel(self) -> None:
         self.dismiss(False)
-
-
-def _escape(text: str) -> str:
-    from rich.markup import escape
-
-    return escape(text)

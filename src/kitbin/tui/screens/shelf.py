@@ -14,6 +14,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.widgets import Footer, Input, Static
 
+from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import ShelfLoaded
 from kitbin.tui.screens.base import KitbinScreen
 from kitbin.tui.widgets.shelf.grid import ShelfGrid, header_text
@@ -284,9 +285,3 @@ class ShelfScreen(KitbinScreen):
 
     def action_quit(self) -> None:
         self.app.exit()
-
-
-def _escape(text: str) -> str:
-    from rich.markup import escape
-
-    return escape(text)

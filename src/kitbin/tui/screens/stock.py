@@ -10,6 +10,7 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Footer, Input, Label, Static
 
+from kitbin.tui.markup import plain
 from kitbin.tui.messages import InventoryChanged, StockAdjusted
 from kitbin.tui.screens.base import KitbinModal
 from kitbin.tui.screens.record import show_check
@@ -72,7 +73,7 @@ class StockScreen(KitbinModal):
             problems.append("give a reason")
         if problems:
             text = "nothing written: " + "; ".join(problems)
-            self.query_one("#stock-problems", Static).update(text)
+            self.query_one("#stock-problems", Static).update(plain(text))
             self.notify(text, severity="error")
             return
         self.adjust(self.app.store, int(delta.value), why)
