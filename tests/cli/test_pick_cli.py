@@ -169,3 +169,23 @@ def test_reserve_with_shortfall_writes_nothing(db: Path) -> None:
 def test_unknown_pick_list(db: Path) -> None:
     r = kb(db, "picks", "done", "42")
     assert r.exit_code == 4 and "no pick list 42" in r.stderr
+
+
+def test_demo_tour_step(tmp_path: Path) -> None:
+    # The tour step on the invented demo workshop: it saves the demo plan when missing,
+    # ranks the inductors with reasons, and prints a pick list with its bring-up sheet.
+    from kitbin.services.demo import build_demo
+    from kitbin.services.picking import DEMO_PLAN, tour_match_and_pick
+    from kitbin.store import open_store
+
+    url = str(tmp_path / "demo.sqlite")
+    build_demo(url, force=True)
+    with open_store(url) as store:
+        section = tour_match_and_pick(store)
+    text = "\n".join(section.lines)
+    assert "invented" in section.title
+    assert f"kitbin match {DEMO_PLAN} --role inductor" in text
+    assert "1. L-" in text and "feedback divider" in text
+    assert "bring-up sheet:" in text and "duty cycle at Vin" in text
+    assert "licensed practice" in text
+    assert _q(tmp_path / "demo.sqlite", "SELECT name FROM plan") == [(DEMO_PLAN,)]

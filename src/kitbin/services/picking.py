@@ -586,3 +586,85 @@ __all__ = [
     "reserve_sheet",
     "take",
 ]
+
+
+# -- demo workshop: a plan to walk, and the tour step -----------------------------------
+
+#: The invented demo plan: a 9-13.2 V to 5 V, 1 A buck on the demo's set-resistor
+#: controller U-02 (its properties fill vref, fsw, the current-limit gain ...).
+DEMO_PLAN = "demo-5v"
+DEMO_PLAN_FIELDS: dict[str, Any] = {
+    "topology": "buck",
+    "vin_min": 9.0,
+    "vin_max": 13.2,
+    "vout": 5.0,
+    "iout_max": 1.0,
+    "fsw": 1.2e6,
+}
+
+
+def demo_build_plan(store: Store, workshop: Any = None, rng: Any = None) -> None:
+    """Demo build step: save the invented plan ``demo-5v`` unless one exists.
+
+    Signature of :data:`kitbin.services.demo.BUILD_STEPS` entries.
+    """
+    from kitbin.errors import NotFoundError as _NotFound
+    from kitbin.services import plans
+
+    with store.transaction() as session:
+        if matchreads.plan_by_name(session, DEMO_PLAN) is not None:
+            return
+    try:
+        plans.new_plan(
+            store,
+            DEMO_PLAN,
+            dict(DEMO_PLAN_FIELDS),
+            controller="U-02",
+            notes="invented demo plan: a 5 V, 1 A bench supply from a 12 V adaptor",
+        )
+    except _NotFound:  # a workshop without the demo controller: plan without it
+        plans.new_plan(store, DEMO_PLAN, {**DEMO_PLAN_FIELDS, "vref": 1.25})
+
+
+def tour_match_and_pick(store: Store) -> Any:
+    """Demo tour step: the plan, the ranked inductors with reasons, the divider, and a
+    pick list with its bring-up sheet. Returns a ``TourSection`` (or None without the
+    plan). Signature of :data:`kitbin.services.demo.TOUR_STEPS` entries."""
+    from kitbin.services.demo import TourSection
+
+    demo_build_plan(store)
+    try:
+        m = match_plan(store, DEMO_PLAN, top=3)
+        sheet, _chosen, _m = build_sheet(store, DEMO_PLAN, boards=2)
+    except KitbinError as error:
+        return TourSection("Plan, match and pick", [f"not available: {error}"])
+    lines = [f"kitbin plan show {DEMO_PLAN}: {_summary(m.spec)}"]
+    lines.append(f"kitbin match {DEMO_PLAN} --role inductor --top 3:")
+    ind = m.roles.get("inductor")
+    if ind is not None:
+        counts = ", ".join(f"{v} {k}" for k, v in ind.counts.items())
+        lines.append(f"  {len(ind.verdicts.candidates)} inductor bins judged: {counts}")
+        for row in ind.rows:
+            lines.append(f"  {row.rank}. {row.label} {row.verdict}: {row.summary}")
+    if m.divider is not None:
+        lines.append(f"feedback divider ({m.divider.verdict}): {m.divider.note}")
+    if m.set_network is not None:
+        lines.append(f"set resistor ({m.set_network.verdict}): {m.set_network.note}")
+    lines.append(f"kitbin pick {DEMO_PLAN} --boards 2:")
+    for ln in sheet.lines:
+        short = f", SHORT by {ln.shortfall}" if ln.shortfall else ""
+        where = f" ({ln.location})" if ln.location else ""
+        lines.append(
+            f"  {ln.role}: {ln.label or '—'}{where} × {ln.qty_total}{short} [{ln.verdict}]"
+        )
+    if sheet.bring_up is not None:
+        from kitbin.picking import bring_up_rows
+
+        lines.append("bring-up sheet:")
+        lines += [f"  {k}: {v}" for k, v in bring_up_rows(sheet.bring_up) if k != "note"]
+        lines.append("  safety: " + sheet.bring_up.cautions[-1])
+    lines.append(
+        f"Try: kitbin pick {DEMO_PLAN} --boards 2 --format html --out pick.html "
+        "(add --reserve to hold the parts)"
+    )
+    return TourSection("Plan, match and pick (invented demo plan)", lines)
