@@ -328,6 +328,8 @@ def tour_intro(store: Store) -> TourSection:
         [
             w["note"],
             f"Database: {store.masked_url}",
+            "Before measuring real parts, read docs/safety.md: hot windings, charged "
+            "capacitors, scope ground clips, mains supplies.",
         ],
     )
 
