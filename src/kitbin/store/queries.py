@@ -78,9 +78,17 @@ def bins(
     if kit_id is not None:
         query = query.where(Bin.kit_id == kit_id)
     if search:
-        pattern = f"%{search.strip().lower()}%"
+        # autoescape: a "%" or "_" typed by the user is matched literally, not as a wildcard.
+        needle = search.strip().lower()
         columns = (Bin.label, Bin.marking, Bin.package, Bin.location, Bin.notes)
-        query = query.where(or_(*(func.lower(func.coalesce(c, "")).like(pattern) for c in columns)))
+        query = query.where(
+            or_(
+                *(
+                    func.lower(func.coalesce(c, "")).contains(needle, autoescape=True)
+                    for c in columns
+                )
+            )
+        )
     return session.scalars(query.order_by(Bin.label)).all()
 
 
