@@ -14,7 +14,8 @@ Captures (bins of the demo's "Drum-core inductor assortment", see
 * ``L-11`` (10 µH, 8x10 mm drum): one long pulse to about 2.2 A with the
   inductor voltage measured on a second channel; L never falls 20 %, so Isat is
   "not reached up to i_max".
-* ``L-14`` (47 µH, 8x10 mm drum): one pulse, a gradual (soft) knee.
+* ``L-14`` (47 µH, 8x10 mm drum): one pulse to about 2.2 A, a gradual (soft) knee
+  (Isat(20 %) near 1.2 A).
 * Temperature logs: ``L-05`` at 1.5 A settles; ``L-11`` at 2.5 A ends after
   about one time constant (the fit must say "extrapolated").
 
@@ -134,7 +135,7 @@ def write_pulse_measured_vl(rng: np.random.Generator) -> dict:
 
 def write_pulse_soft(rng: np.random.Generator) -> dict:
     """L-14: soft knee, one pulse, whitespace-separated with no header row."""
-    model = InductorModel(l0_H=44e-6, knee_A=1.45, shape="smooth", p=3.0)
+    model = InductorModel(l0_H=44e-6, knee_A=1.9, shape="smooth", p=3.0)
     v, r_loop, r_sense = 12.0, 0.4, 0.1
     t_on = on_time_for(model, v, r_loop, 2.2)
     dt = 1e-9
