@@ -56,12 +56,20 @@ class Stock:
     tables: dict[str, EvidenceTable]
     curves: dict[int, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
 
-    def subset(self, kinds: Sequence[str]) -> tuple[np.ndarray, Candidates]:
-        """Rows of the given kinds, as :class:`Candidates` (and their row indices)."""
+    def subset(
+        self, kinds: Sequence[str], quantities: Iterable[str] | None = None
+    ) -> tuple[np.ndarray, Candidates]:
+        """Rows of the given kinds, as :class:`Candidates` (and their row indices), with
+        the tables of ``quantities`` only (all when None)."""
         rows = np.flatnonzero(np.isin(self.kinds, list(kinds)))
+        wanted = (
+            self.tables
+            if quantities is None
+            else {q: self.tables[q] for q in quantities if q in self.tables}
+        )
         if rows.size == self.ids.size:
-            return rows, Candidates(self.labels, self.available, self.tables, self.curves)
-        tables = {q: _take(t, rows) for q, t in self.tables.items()}
+            return rows, Candidates(self.labels, self.available, wanted, self.curves)
+        tables = {q: _take(t, rows) for q, t in wanted.items()}
         where = np.searchsorted(rows, np.fromiter(self.curves, dtype=np.int64))
         curves = {
             int(w): c
@@ -317,14 +325,14 @@ def match_plan(
     divider = None
     for d in wanted:
         if d.role == DIVIDER_ROLE:
-            _, cands = stock.subset(kinds_for(d.role, d))
+            _, cands = stock.subset(kinds_for(d.role, d), ["resistance"])
             divider = choose_divider(spec, d, cands, boards=boards)
             continue
         roles[d.role] = judge_role(spec, d, stock, top=top, boards=boards)
     network = None
     rm = roles.get("set_resistor")
     if rm is not None and (rm.best is None or rm.best.verdict != "verified"):
-        _, cands = stock.subset(rm.kinds)
+        _, cands = stock.subset(rm.kinds, ["resistance"])
         d = next(x for x in wanted if x.role == "set_resistor")
         network = choose_set_network(d, cands, boards=boards)
         order = ("verified", "unverified", "fails")
@@ -388,7 +396,7 @@ def judge_role(
 ) -> RoleMatch:
     """Judge and rank one role's candidates."""
     kinds = kinds_for(demand.role, demand)
-    rows_idx, cands = stock.subset(kinds)
+    rows_idx, cands = stock.subset(kinds, quantities_for(demand.role, demand, spec))
     if demand.role == "inductor":
         rv = inductor_verdicts(spec, demand, cands, per_board=boards)
     else:
