@@ -322,6 +322,11 @@ class Store:
                 yield session
         except KitbinError:
             raise
+        except OverflowError as e:  # sqlite3 refuses Python ints beyond 64 bits
+            raise StoreError(
+                "a whole number is too large to store (largest 9223372036854775807); "
+                "nothing was changed"
+            ) from e
         except SQLAlchemyError as e:
             if is_busy(e):
                 raise busy_error(e, self.url) from e
