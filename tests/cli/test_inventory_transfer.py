@@ -217,3 +217,25 @@ def test_long_import_reports_progress(db: Path, tmp_path: Path) -> None:
     data = json.loads(kb(db, "bin", "show", "L-07", "--json").stdout)
     assert data["evidence"]["inductance"]["n"] == 6001
     assert data["evidence"]["inductance"]["low"] == pytest.approx(4.5e-6)
+
+
+def test_formula_like_text_is_guarded_on_export_and_restored_on_import(tmp_path: Path) -> None:
+    # A cell starting with = + - @ runs as a formula in common spreadsheet programs;
+    # the export puts an apostrophe in front (OWASP "CSV Injection", common practice).
+    db = tmp_path / "a.sqlite"
+    kb(db, "bin", "add", "X-1", "--kind", "other", "--notes", "=1+2", "--location", "@top",
+       "--qty", "2")  # fmt: skip
+    kb(db, "record", "X-1", "rise=-3K", "--method", "-cool", "--note", "+fast")
+    bins_csv, readings_csv = tmp_path / "b.csv", tmp_path / "r.csv"
+    kb(db, "export", str(bins_csv), "--what", "bins")
+    kb(db, "export", str(readings_csv), "--what", "readings")
+    assert "'=1+2" in bins_csv.read_text() and "'@top" in bins_csv.read_text()
+    text = readings_csv.read_text()
+    assert "'-cool" in text and "'+fast" in text and ",-3.0," in text
+    other = tmp_path / "b.sqlite"
+    assert kb(other, "import", str(bins_csv)).exit_code == 0
+    assert kb(other, "import", str(readings_csv)).exit_code == 0
+    shown = json.loads(kb(other, "bin", "show", "X-1", "--json").stdout)
+    assert (shown["notes"], shown["location"]) == ("=1+2", "@top")
+    (reading,) = shown["readings"]
+    assert (reading["method"], reading["note"], reading["value"]) == ("-cool", "+fast", -3.0)

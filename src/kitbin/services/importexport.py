@@ -76,7 +76,7 @@ class _Row:
         self.cells = cells
 
     def get(self, column: str) -> str:
-        return self.cells.get(column, "").strip()
+        return _unguard(self.cells.get(column, "")).strip()
 
     def fail(self, problem: str) -> ImportRowError:
         return ImportRowError(
@@ -459,12 +459,29 @@ def _taken_at(row: _Row, now: dt.datetime) -> dt.datetime:
 # -- export ------------------------------------------------------------------------
 
 
+#: A text cell starting with one of these is run as a formula by common spreadsheet
+#: programs; exports put an apostrophe in front (OWASP "CSV Injection", common
+#: practice) and imports take it off again.
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+
 def _cell(value: Any) -> str:
+    """A value as CSV text: floats exactly (repr), formula-like text guarded."""
     if value is None:
         return ""
     if isinstance(value, float):
         return repr(value)
-    return str(value)
+    if isinstance(value, int):
+        return str(value)
+    text = str(value)
+    return "'" + text if text.startswith(FORMULA_STARTS) else text
+
+
+def _unguard(text: str) -> str:
+    """Undo :func:`_cell`'s guard on a text cell read back."""
+    if len(text) > 1 and text[0] == "'" and text[1] in FORMULA_STARTS:
+        return text[1:]
+    return text
 
 
 def export_csv(store: Store, path: str, *, what: str = "bins") -> int:
