@@ -83,3 +83,13 @@ def test_plain_keeps_brackets_through_textual_markup():
 
     text = "role 1/6 ([ and ] switch roles) [b]label[/b]"
     assert Content.from_markup(plain(text)).plain == text
+
+
+def test_capture_results_named_with_units():
+    from kitbin.tui.widgets.bin.text import results_lines
+
+    lines = results_lines(
+        "ramp", {"isat_A": {"10": 1.05, "20": None}, "i_max_A": 1.73, "l0_H": 9.59e-6}
+    )
+    assert lines[0] == "Isat10% 1.05 A, Isat20% not reached (≥ 1.73 A)"
+    assert "L0 (low bias): 9.59 µH" in lines

@@ -134,7 +134,9 @@ def test_analyse_a_demo_capture_and_save_it(demo_db: str) -> None:
             await pilot.press("ctrl+a")
             await _until(pilot, lambda: app.screen.analysed is not None)
             results = str(app.screen.query_one("#capture-results").content)
-            assert "not saved yet" in results and "Isat20%" in results and "l0_H" in results
+            assert (
+                "not saved yet" in results and "Isat20%" in results and "L0 (low bias)" in results
+            )
             with open_store(demo_db) as store, store.transaction() as session:
                 assert queries.counts(session)["capture"] == captures_before
             await pilot.press("ctrl+s")

@@ -26,6 +26,13 @@ from kitbin.tui.widgets.bin.text import (
 )
 
 TABS = ("evidence", "readings", "captures", "curves", "stock")
+#: The widget of each tab that takes the focus when the tab is shown (curves: the tabs).
+PANE_FOCUS = {
+    "evidence": ".scroll-text",
+    "readings": "#bin-readings",
+    "captures": "#bin-captures",
+    "stock": "#bin-moves",
+}
 
 
 class HeatTraced(BinLoaded):
@@ -198,7 +205,14 @@ class BinScreen(KitbinScreen):
     # -- keys -------------------------------------------------------------------------
 
     def action_tab(self, tab: str) -> None:
+        # Focus moves into the new pane at once: a TabbedContent switches back to the
+        # pane that still holds the focus (seen with Textual 8.2.8).
         self.query_one(TabbedContent).active = tab
+        target = PANE_FOCUS.get(tab)
+        if target:
+            self.query_one(f"#{tab} {target}").focus()
+        else:
+            self.query_one(TabbedContent).query_one("ContentTabs").focus()
 
     def action_back(self) -> None:
         self.app.pop_screen()

@@ -9,7 +9,7 @@ from typing import Any, ClassVar
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Horizontal, ScrollableContainer, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import DataTable, Footer, Input, Label, Static, TabbedContent, TabPane
 
@@ -28,6 +28,13 @@ from kitbin.tui.widgets.plan.text import (
 )
 
 PLAN_TABS = ("plans", "demands", "ranked", "pick")
+#: The widget of each tab that takes the focus when the tab is shown.
+PANE_FOCUS = {
+    "plans": "#plan-list",
+    "demands": "#plan-corners",
+    "ranked": "#plan-ranked",
+    "pick": ".scroll-wide",
+}
 FORMATS = ("text", "csv", "md", "html")
 EXTENSIONS = {"text": "txt", "csv": "csv", "md": "md", "html": "html"}
 
@@ -119,8 +126,8 @@ class PlanScreen(KitbinScreen):
                 yield DataTable(id="plan-ranked", cursor_type="row")
                 with VerticalScroll(classes="scroll-text"):
                     yield Static("", id="plan-reasons")
-            with TabPane("4 pick list", id="pick"), VerticalScroll(classes="scroll-text"):
-                yield Static("", id="plan-sheet")
+            with TabPane("4 pick list", id="pick"), ScrollableContainer(classes="scroll-wide"):
+                yield Static("", id="plan-sheet", classes="wide-text")
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
@@ -212,10 +219,8 @@ class PlanScreen(KitbinScreen):
         )
         self._show_role()
         self._show_sheet(page["sheet"])
-        tabs = self.query_one(TabbedContent)
-        if tabs.active == "plans":
-            tabs.active = "ranked"
-            self.query_one("#plan-ranked", DataTable).focus()
+        if self.query_one(TabbedContent).active == "plans":
+            self.action_tab("ranked")
 
     def _show_sheet(self, sheet: Any) -> None:
         from kitbin.picking import render
@@ -296,14 +301,18 @@ class PlanScreen(KitbinScreen):
         return True
 
     def action_tab(self, tab: str) -> None:
+        # Focus moves into the new pane at once: a TabbedContent switches back to the
+        # pane that still holds the focus (seen with Textual 8.2.8).
         self.query_one(TabbedContent).active = tab
+        self.query_one(f"#{tab} {PANE_FOCUS[tab]}").focus()
 
     def action_role(self, step: int) -> None:
         if not self._need_plan():
             return
         self.role_index += step
         self._show_role()
-        self.query_one(TabbedContent).active = "ranked"
+        if self.query_one(TabbedContent).active != "ranked":
+            self.action_tab("ranked")
 
     def action_use_bin(self) -> None:
         if not self._need_plan():
@@ -353,7 +362,7 @@ class PlanScreen(KitbinScreen):
         sheet = message.sheet
         self.page["sheet"] = sheet
         self._show_sheet(sheet)
-        self.query_one(TabbedContent).active = "pick"
+        self.action_tab("pick")
         self.notify(
             f"pick list {sheet.pick_id} reserved; take the parts with "
             f"`kitbin picks done {sheet.pick_id}` or release them with "

@@ -37,7 +37,8 @@ def show_check(widget: Static, check: Check) -> None:
     """Draw a field's check line: green when read, red with the reason when not."""
     widget.set_class(check.ok is True, "check-ok")
     widget.set_class(check.ok is False, "check-bad")
-    widget.update(_escape(("✓ " if check.ok else "✗ ") + check.message) if check.message else "")
+    mark = {True: "✓ ", False: "✗ ", None: "· "}[check.ok]
+    widget.update(_escape(mark + check.message) if check.message else "")
 
 
 class RecordScreen(KitbinModal):

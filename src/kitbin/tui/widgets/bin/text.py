@@ -91,6 +91,8 @@ def _si(key: str, value: Any) -> str:
         return str(value)
     units = (
         ("_K_per_W", "thermal_resistance"),
+        ("_App", "current"),
+        ("_Vpp", "voltage"),
         ("_ohm", "resistance"),
         ("_H", "inductance"),
         ("_A", "current"),
@@ -124,6 +126,25 @@ _KEY_RESULTS = {
 }
 
 
+#: How each result is named on screen.
+RESULT_NAMES = {
+    "l0_H": "L0 (low bias)",
+    "i_max_A": "highest current",
+    "saturated": "saturated",
+    "ramps": "ramps used",
+    "l0_spread": "L0 spread (fraction)",
+    "noise_A": "current noise",
+    "t_amb_C": "ambient",
+    "rise_ss_K": "steady rise",
+    "tau_s": "time constant",
+    "current_A": "test current",
+    "r_th_K_per_W": "R_th",
+    "i_for_rise_A": "current for the allowed rise",
+    "t_hot_C": "hot temperature",
+    "reached_fraction": "share of the rise reached",
+}
+
+
 def results_lines(kind: str, results: Mapping[str, Any]) -> list[str]:
     """The analysis results of a capture, key ones first, one per line."""
     lines = []
@@ -140,7 +161,7 @@ def results_lines(kind: str, results: Mapping[str, Any]) -> list[str]:
         lines.append(", ".join(parts))
     for key in _KEY_RESULTS.get(kind, ()):
         if key in results:
-            lines.append(f"{key}: {_si(key, results[key])}")
+            lines.append(f"{RESULT_NAMES.get(key, key)}: {_si(key, results[key])}")
     for key in ("warnings", "flags"):
         if results.get(key):
             lines.append(f"{key}: " + "; ".join(str(w) for w in results[key]))
