@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import importlib
 import sys
 from typing import Any
 
@@ -61,22 +62,27 @@ def root(
     ctx.obj = CliState(db=db)
 
 
-# Command modules register themselves here. Each imports only typer at module level.
-# -- registered command modules (keep one line each) --
-__import__("kitbin.cli.kits", fromlist=["register"]).register(app)
-__import__("kitbin.cli.bins", fromlist=["register"]).register(app)
-__import__("kitbin.cli.stock", fromlist=["register"]).register(app)
-__import__("kitbin.cli.record", fromlist=["register"]).register(app)
-__import__("kitbin.cli.transfer", fromlist=["register"]).register(app)
-__import__("kitbin.cli.bench", fromlist=["register"]).register(app)
-__import__("kitbin.cli.setup", fromlist=["register"]).register(app)
-__import__("kitbin.cli.stage", fromlist=["register"]).register(app)
-__import__("kitbin.cli.plans", fromlist=["register"]).register(app)
-__import__("kitbin.cli.match", fromlist=["register"]).register(app)
-__import__("kitbin.cli.pick", fromlist=["register"]).register(app)
-__import__("kitbin.cli.ui", fromlist=["register"]).register(app)
-__import__("kitbin.cli.backup", fromlist=["register"]).register(app)
+#: Command modules, in the order ``kitbin --help`` lists them. Each imports only typer
+#: (and kitbin.cli.common / kitbin.errors) at module level and defines ``register(app)``.
+# -- registered command modules (keep one name each) --
+COMMAND_MODULES = (
+    "setup",
+    "kits",
+    "bins",
+    "stock",
+    "record",
+    "bench",
+    "stage",
+    "plans",
+    "match",
+    "pick",
+    "transfer",
+    "backup",
+    "ui",
+)
 # -- end of registered command modules --
+for _module in COMMAND_MODULES:
+    importlib.import_module(f"kitbin.cli.{_module}").register(app)
 
 
 def main() -> None:
