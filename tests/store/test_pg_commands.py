@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import json
 import os
+import sys
 from pathlib import Path
 
 import numpy as np
@@ -43,6 +44,19 @@ def _ramp_file(path: Path) -> Path:
     return path
 
 
+def _heat_file(path: Path) -> Path:
+    """A first-order heating log: 30 K rise with a 300 s time constant, from 25 degC.
+
+    T(t) = T_amb + dT (1 - exp(-t/tau)) (lumped thermal model; common practice, no source).
+    """
+    t = np.arange(0.0, 1801.0, 5.0)
+    np.savetxt(
+        path, np.c_[t, 25.0 + 30.0 * (1 - np.exp(-t / 300.0))], delimiter=",",
+        header="time,temp", comments="",
+    )  # fmt: skip
+    return path
+
+
 def test_every_inventory_command(db_url: str, tmp_path: Path) -> None:
     kb(db_url, "init")
     kb(db_url, "init")  # a second init is an upgrade that finds nothing to do
@@ -67,6 +81,8 @@ def test_every_inventory_command(db_url: str, tmp_path: Path) -> None:
     kb(db_url, "ring", "--bin", "L-01", "--cap", "100nF", "--freq", "159kHz", "--save")
     kb(db_url, "ramp", str(_ramp_file(tmp_path / "ramp.csv")), "--bin", "L-01", "--sense",
        "0.1ohm", "--vl", "12V", "--save")  # fmt: skip
+    kb(db_url, "heat", str(_heat_file(tmp_path / "heat.csv")), "--bin", "L-01", "--current",
+       "2A", "--save")  # fmt: skip
 
     bins_csv = tmp_path / "bins.csv"
     bins_csv.write_text(
@@ -89,7 +105,8 @@ def test_every_inventory_command(db_url: str, tmp_path: Path) -> None:
     readings = kb_json(db_url, "bin", "show", "L-01")["readings"]
     quantities = sorted(r["quantity"] for r in readings)
     assert {"inductance", "dcr"} <= set(quantities)
-    assert len(readings) >= 4  # record (2) + ring (1) + ramp (L0 and the Isat bounds)
+    assert len(readings) >= 8  # record 2, ring 1, ramp (L0, Isat bounds), heat (rise, ...)
+    assert "rise" in quantities
 
     out = tmp_path / "export-bins.csv"
     kb(db_url, "export", str(out), "--what", "bins")
@@ -138,3 +155,29 @@ def test_password_hidden_on_a_live_server(databases) -> None:
 
     with open_store(with_password) as store:
         assert "Hush" not in store.masked_url and "***" in store.masked_url
+
+
+def test_plan_match_pick_and_picks_commands(db_url: str) -> None:
+    # The hand-made inventory and plan of the match/pick CLI tests, on this backend.
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "cli"))
+    try:
+        import match_helpers
+    finally:
+        sys.path.pop(0)
+    match_helpers.build(db_url)  # kitbin bin add / record / stock / plan new
+    assert [p["name"] for p in kb_json(db_url, "plan", "list")] == ["bench-5v"]
+    kb(db_url, "plan", "show", "bench-5v")
+    ranked = kb_json(db_url, "match", "bench-5v")
+    assert [row["bin"] for row in ranked["roles"]["inductor"]] == ["L-A", "L-B", "L-E"]
+    kb(db_url, "pick", "bench-5v", "--boards", "3", "--reserve")
+    lists = kb_json(db_url, "picks", "list")
+    assert [(p["id"], p["state"]) for p in lists] == [(1, "reserved")]
+    assert kb_json(db_url, "bin", "show", "L-A")["qty_reserved"] == 3
+    kb(db_url, "picks", "done", "1")
+    assert kb_json(db_url, "bin", "show", "L-A")["qty"] == 7
+    kb(db_url, "pick", "bench-5v", "--reserve")
+    kb(db_url, "picks", "cancel", "2")
+    assert [p["state"] for p in kb_json(db_url, "picks", "list")] == ["cancelled", "picked"]
+    assert kb_json(db_url, "bin", "show", "L-A")["qty_reserved"] == 0
+    late = kb(db_url, "picks", "done", "2", code=5)
+    assert len(late.stderr.strip().splitlines()) == 1
