@@ -33,7 +33,7 @@ import numpy as np
 from kitbin.errors import CaptureError
 
 #: Bytes looked at to sniff the layout.
-SNIFF_BYTES = 16 * 1024
+SNIFF_BYTES = 8 * 1024
 #: Files at least this large are handed to pandas by path, which parses them on
 #: several threads (pandas 3 parallel read; its own threshold is 5 MiB).
 PARALLEL_MIN_BYTES = 6 * 1024 * 1024
@@ -230,7 +230,7 @@ def read_capture(
         time_source = "dt" if dt is not None else "metadata interval"
 
     time = _bridge_gaps(time, names[time_index] if time_index is not None else "time", source)
-    if not (time[1:] > time[:-1]).all():
+    if not _increasing(time):
         row = int(np.flatnonzero(~(time[1:] > time[:-1]))[0]) + 1
         raise CaptureError(
             f"{source}: time does not increase at sample {row + 1} "
@@ -613,6 +613,16 @@ def _pick_time(
             if med > 0 and np.all((steps > 0.5 * med) & (steps < 2.0 * med)):
                 return 0
     return None
+
+
+def _increasing(values: np.ndarray, chunk: int = 1 << 16) -> bool:
+    """Strictly increasing, checked in cache-sized chunks (no 2 MB temporaries)."""
+    n = values.shape[0]
+    for a in range(0, max(n - 1, 0), chunk):
+        part = values[a : min(n, a + chunk + 1)]
+        if not (part[1:] > part[:-1]).all():
+            return False
+    return True
 
 
 def _is_counter(column: np.ndarray) -> bool:
