@@ -43,6 +43,8 @@ def main(names: list[str]) -> int:
             figure = module.run()
         except ModuleNotFoundError as error:
             figure = {"error": f"benchmark module missing: {error.name}"}
+        except Exception as error:  # one broken figure must not hide the others
+            figure = {"error": f"{type(error).__name__}: {error}"}
         figure["bench_wall_s"] = round(time.perf_counter() - start, 2)
         results[name] = figure
         print(f"{name}: done in {figure['bench_wall_s']} s", file=sys.stderr)
