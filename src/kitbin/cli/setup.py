@@ -33,6 +33,7 @@ def register(app: typer.Typer) -> None:
         ),
         force: bool = typer.Option(False, "--force", help="Wipe the database named by --db first."),
         as_json: bool = typer.Option(False, "--json", help="Print counts and tour as JSON."),
+        ui: bool = typer.Option(False, "--ui", help="Then open the terminal UI on it."),
     ) -> None:
         """Build the invented demo workshop in its own database and show a short tour.
 
@@ -63,6 +64,10 @@ def register(app: typer.Typer) -> None:
             for line in section.lines:
                 out.print(f"  {line}", soft_wrap=True, markup=False)
             out.print()
+        if ui:
+            from kitbin.tui.app import make_app  # only when asked for (Textual ~160 ms)
+
+            make_app(result.url).run()
 
 
 def _explicit_root_db(ctx: typer.Context) -> str | None:
