@@ -89,7 +89,10 @@ class KitbinApp(App[None]):
 
     def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
         if event.state == WorkerState.ERROR and event.worker.error is not None:
-            self.notify(error_line(event.worker.error), title="kitbin", severity="error")
+            line = error_line(event.worker.error)
+            self.notify(line, title="kitbin", severity="error")
+            if event.worker.group == "store":
+                self.shelf.database_failed(line)
 
     def action_help(self) -> None:
         from kitbin.tui.screens.help import HelpScreen

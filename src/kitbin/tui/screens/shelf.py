@@ -229,7 +229,21 @@ class ShelfScreen(KitbinScreen):
     def _chosen(self, message: ShelfGrid.Chosen) -> None:
         self._open(message.row.label)
 
+    def database_failed(self, line: str) -> None:
+        """Say on the shelf that the database could not be opened."""
+        self.query_one("#shelf-status", Static).update(
+            _escape(f"no database: {line} — quit with q and start again with --db FILE")
+        )
+
+    def _store_ready(self) -> bool:
+        if self.app.store is None:
+            self.notify("the database is not open", severity="warning")
+            return False
+        return True
+
     def _current_label(self) -> str | None:
+        if not self._store_ready():
+            return None
         row = self.query_one(ShelfGrid).current
         if row is None:
             self.notify("no bin highlighted", severity="warning")
@@ -270,6 +284,8 @@ class ShelfScreen(KitbinScreen):
     def action_plans(self) -> None:
         from kitbin.tui.screens.plans import PlanScreen
 
+        if not self._store_ready():
+            return
         self.app.push_screen(PlanScreen())
 
     def action_kits(self) -> None:
