@@ -198,3 +198,32 @@ def test_plan_ranked_export_and_reserve(demo_db: str, tmp_path: Path) -> None:
 
         picks = picking.list_picks(store, "reserved")
     assert len(picks) == 1 and picks[0]["plan"] == "t5v"
+
+
+def _stock(db: str, label: str) -> tuple[int, int]:
+    with open_store(db) as store:
+        page = inventory.show_bin(store, label)
+    return page["qty"], len(page["moves"])
+
+
+def test_stock_change_and_a_refused_take(demo_db: str) -> None:
+    qty, moves = _stock(demo_db, "L-05")
+
+    async def scenario() -> None:
+        app = make_app(demo_db)
+        async with app.run_test(size=(80, 24)) as pilot:
+            await _shelf_ready(app, pilot)
+            await pilot.press("slash", *"L-05", "enter", "a")
+            await _until(pilot, lambda: _screen(app, "StockScreen"))
+            await pilot.press(*f"-{qty + 100}", "enter", *"counted", "enter")
+            await _until(pilot, lambda: any(n.severity == "error" for n in app._notifications))
+            errors = [n.message for n in app._notifications if n.severity == "error"]
+            assert len(errors) == 1 and "\n" not in errors[0] and "Traceback" not in errors[0]
+            assert _screen(app, "StockScreen") and _stock(demo_db, "L-05") == (qty, moves)
+            app.screen.query_one("#stock-delta").value = "+5"
+            await pilot.press("ctrl+s")
+            await _until(pilot, lambda: _screen(app, "ShelfScreen"))
+            await _until(pilot, lambda: app.shelf.query_one(ShelfGrid).current.qty == qty + 5)
+
+    asyncio.run(scenario())
+    assert _stock(demo_db, "L-05") == (qty + 5, moves + 1)
