@@ -331,6 +331,11 @@ def analyse_ramp(
     n_eff = i_pts.size * stride / m
     n_bins = int(np.clip(n_eff / 8.0, 12, 100))
     centres, medians, counts = _binned_median(i_pts, l_pts, i_min, i_max, n_bins)
+    if centres.size < 3 or not i_max > 0:
+        raise CaptureError(
+            f"{source}: too few usable points on the rising segments "
+            "(the ramps are too short or the current does not rise above zero)"
+        )
 
     # 5. L0 from the low-current window
     w_lo = max(i_min, l0_window[0] * i_max)
@@ -349,11 +354,16 @@ def analyse_ramp(
         t, current, idx, i_pts, starts, (w_lo, w_hi), vl_arr if measured_vl else v_const, r_loop, m
     )
     l0 = l0_lines if l0_lines is not None else l0_points
-    halves = np.array_split(np.sort(i_pts[in_window]), 2) if in_window.sum() >= 10 else []
-    if len(halves) == 2:
-        l_a = float(np.median(l_pts[in_window & (i_pts <= halves[0][-1])]))
-        l_b = float(np.median(l_pts[in_window & (i_pts > halves[0][-1])]))
-        if abs(l_b - l_a) > 0.05 * l0:
+    if in_window.sum() >= 10:
+        split = float(np.median(i_pts[in_window]))
+        lower = l_pts[in_window & (i_pts <= split)]
+        upper = l_pts[in_window & (i_pts > split)]
+        changes = (
+            lower.size >= 3
+            and upper.size >= 3
+            and abs(float(np.median(upper)) - float(np.median(lower))) > 0.05 * l0
+        )
+        if changes:
             warnings.append("L already changes inside the L0 window; L0 is approximate")
     if i_min > 0.25 * i_max:
         warnings.append(

@@ -196,6 +196,19 @@ def read_capture(
             f"{source}: only {n_rows} samples of numeric data, need at least {min_samples}"
         )
 
+    # the numbers are not checked yet (inf, overflow): the checks below report them
+    with np.errstate(all="ignore"):
+        return _assemble(layout, columns_data, columns, time_col, dt, source)
+
+
+def _assemble(
+    layout: Layout,
+    columns_data: list[np.ndarray],
+    columns: Sequence[str | int] | None,
+    time_col: str | int | None,
+    dt: float | None,
+    source: str,
+) -> Capture:
     names = list(layout.names)
     scales = [_unit_of(nm) for nm in names]
     detected_time = _pick_time(names, columns_data, time_col, None, source)
@@ -226,7 +239,7 @@ def read_capture(
                 f"{source}: no time column found (columns found: {_listing(names)})",
                 "give the sample interval with --dt, or the time column with --time-col",
             )
-        time = np.arange(n_rows, dtype=float) * interval
+        time = np.arange(columns_data[0].shape[0], dtype=float) * interval
         time_source = "dt" if dt is not None else "metadata interval"
 
     time = _bridge_gaps(time, names[time_index] if time_index is not None else "time", source)
