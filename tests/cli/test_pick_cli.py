@@ -189,3 +189,11 @@ def test_demo_tour_step(tmp_path: Path) -> None:
     assert "bring-up sheet:" in text and "duty cycle at Vin" in text
     assert "licensed practice" in text
     assert _q(tmp_path / "demo.sqlite", "SELECT name FROM plan") == [(DEMO_PLAN,)]
+
+
+def test_unwritable_out_reserves_nothing(db: Path, tmp_path: Path) -> None:
+    before = snapshot(db)
+    out = tmp_path / "no-such-folder" / "pick.html"
+    r = kb(db, "pick", "bench-5v", "--reserve", "--format", "html", "--out", str(out))
+    assert r.exit_code == 1 and "cannot write" in r.stderr
+    assert snapshot(db) == before

@@ -24,6 +24,14 @@ def _write(text: str, out: Path | None) -> None:
     err_console().print(f"wrote {out}")
 
 
+def _check_writable(out: Path) -> None:
+    import os
+
+    parent = out.parent if str(out.parent) else Path(".")
+    if out.is_dir() or not parent.is_dir() or not os.access(parent, os.W_OK):
+        raise KitbinError(f"cannot write {out}: expected a file in an existing folder")
+
+
 def register(app: typer.Typer) -> None:
     """Add ``kitbin pick`` and the ``kitbin picks`` group to the root app."""
 
@@ -58,6 +66,8 @@ def register(app: typer.Typer) -> None:
             raise KitbinError(f"--format {fmt!r}: expected one of {', '.join(FORMATS)}")
         r_sense = parse_quantity(sense, "resistance")
         choices = picking.parse_use(use or [])
+        if out is not None:
+            _check_writable(out)  # before anything is reserved
         with open_store(state(ctx).db) as store:
             sheet, chosen, m = picking.build_sheet(
                 store, plan, boards=boards, use=choices, sense=r_sense
