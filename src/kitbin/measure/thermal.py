@@ -316,6 +316,10 @@ def rate_heating(
         raise CaptureError(f"test current must be positive, got {current!r}")
     if not allowed_rise > 0:
         raise CaptureError(f"allowed rise must be positive, got {allowed_rise!r}")
+    if not (fit.rise_ss_K > 0 and math.isfinite(fit.rise_ss_K) and fit.tau_s > 0):
+        raise CaptureError(
+            f"the fitted heating curve has no positive steady rise ({fit.rise_ss_K:.3g} K)"
+        )
     flags = list(fit.flags)
     t_hot = fit.t_amb_C + fit.rise_ss_K
     seconds = time_to_limit(fit.rise_ss_K, fit.tau_s, allowed_rise)
