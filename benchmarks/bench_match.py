@@ -166,7 +166,9 @@ def run() -> dict:
         data = json.loads(out)
 
         # in-process split (same interpreter, warm imports)
-        from kitbin.services.matching import match_plan
+        from kitbin.match.verdicts import kinds_for, quantities_for
+        from kitbin.services.matching import load_plan, load_stock, match_plan
+        from kitbin.stage.demands import demands
         from kitbin.store import open_store
 
         with open_store(f"sqlite:///{path}") as store:
@@ -174,6 +176,14 @@ def run() -> dict:
             t = time.perf_counter()
             match_plan(store, PLAN)
             inproc_s = time.perf_counter() - t
+            with store.transaction() as session:
+                _, _, spec = load_plan(session, PLAN)
+                ds = demands(spec)
+                kinds = [k for d in ds for k in kinds_for(d.role, d)]
+                qs = [q for d in ds for q in quantities_for(d.role, d, spec)] + ["resistance"]
+                t = time.perf_counter()
+                load_stock(session, kinds, qs)
+                load_s = time.perf_counter() - t
     return {
         **counts,
         "build_s": round(build_s, 1),
@@ -182,6 +192,8 @@ def run() -> dict:
         "cli_match_json_s": round(json_s, 3),
         "cli_match_inductor_only_s": round(role_s, 3),
         "in_process_match_s": round(inproc_s, 3),
+        "in_process_load_evidence_s": round(load_s, 3),
+        "in_process_judge_rank_s": round(inproc_s - load_s, 3),
         "target_s": TARGET_S,
         "within_target": match_s <= TARGET_S and json_s <= TARGET_S,
         "match_over_help_ratio": round(match_s / help_s, 2) if help_s > 0 else math.nan,
