@@ -19,7 +19,7 @@ class KitsScreen(KitbinModal):
     """Kits as bought: name, where from, when, bins; enter filters the shelf to one."""
 
     BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("enter", "choose", "show its bins", show=False),
+        Binding("enter", "choose", "show its bins"),
         Binding("x", "clear", "all kits"),
         Binding("escape", "close", "back"),
     ]
