@@ -362,7 +362,8 @@ def csv_safe(cell: str) -> str:
 def render_csv(sheet: PickSheet) -> str:
     """CSV: one header row, one row per pick line, then the bring-up items."""
     buf = io.StringIO()
-    w = csv.writer(buf, lineterminator="\n")
+    # CRLF rows (RFC 4180): a CR or LF inside a cell is then always quoted
+    w = csv.writer(buf, lineterminator="\r\n")
     w.writerow([csv_safe(c) for c in ("section", *COLUMNS)])
     for ln in sheet.lines:
         w.writerow([csv_safe(c) for c in ("pick", *line_cells(ln))])

@@ -196,3 +196,25 @@ def test_missing_bring_up_values_say_unknown() -> None:
     s = PickSheet("p", "buck", 1, (), bu)
     text = render_text(s)
     assert "unknown (no thermal reading)" in text and "set by the controller" in text
+
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=200, deadline=None)
+@given(cells=st.lists(st.text(max_size=12), min_size=3, max_size=3))
+def test_csv_never_emits_a_formula_and_html_never_emits_a_tag(cells: list[str]) -> None:
+    # Any text in a pick line: no CSV cell may start like a formula (OWASP "CSV
+    # Injection", from memory), and the HTML text must round-trip through escaping
+    # (standard library html.escape) without creating an element.
+    role, label, note = cells
+    ln = PickLine(role or "r", label or None, "part", 1, 1, on_hand=1, note=note)
+    sheet = PickSheet("p", "buck", 1, (ln,), None)
+    for row in csv.reader(io.StringIO(render_csv(sheet))):
+        for cell in row:
+            assert not cell.startswith(("=", "+", "-", "@", "\t", "\r"))
+    p = _Collect()
+    p.feed(render_html(sheet))
+    assert set(p.tags) <= {"html", "head", "meta", "title", "style", "body", "h1", "p",
+                           "table", "thead", "tbody", "tr", "th", "td", "em"}  # fmt: skip
