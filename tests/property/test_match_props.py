@@ -139,3 +139,38 @@ def test_divider_equals_brute_force(values, target, vref, pairs) -> None:
     else:
         assert got is not None
         assert math.isclose(abs(got.vout - target), best, rel_tol=1e-9, abs_tol=1e-12)
+
+
+@settings(max_examples=80, deadline=None)
+@given(
+    isat=st.lists(st.one_of(st.none(), st.tuples(st.floats(0.2, 5.0), st.booleans())),
+                  min_size=1, max_size=8),
+    stock=st.lists(st.integers(0, 30), min_size=8, max_size=8),
+)  # fmt: skip
+def test_ranking_groups_then_scores(isat, stock) -> None:
+    # Order rule (kitbin.match.ranking): verified, then unverified, then fails; within a
+    # group by score, highest first. Checked on random inductor evidence.
+    from kitbin.match.ranking import VERDICTS, rank
+    from kitbin.match.verdicts import Candidates, inductor_verdicts
+    from kitbin.stage.demands import demand_for, demands
+    from kitbin.stage.spec import Spec
+
+    spec = Spec("buck", 12.0, 12.0, 5.0, 1.0, 500e3, vf=0.0, survive_short=False)
+    n = len(isat)
+    rows = [k for k, x in enumerate(isat) if x is not None]
+    tables = {
+        "inductance": evidence_table("inductance", n, nominal=np.full(n, 22e-6),
+                                     tol_minus=np.full(n, 0.1)),
+        "isat_20": evidence_table(
+            "isat_20", n, reading_row=np.array(rows, dtype=int),
+            reading_value=np.array([isat[k][0] for k in rows]),
+            reading_bound=np.array([isat[k][1] for k in rows], dtype=bool),
+        ),
+        "i_rise": evidence_table("i_rise", n, reading_row=np.arange(n),
+                                 reading_value=np.full(n, 3.0)),
+    }  # fmt: skip
+    cands = Candidates(tuple(f"L{k}" for k in range(n)), np.array(stock[:n]), tables)
+    ranked = rank(inductor_verdicts(spec, demand_for(demands(spec), "inductor"), cands), spec)
+    keys = [(VERDICTS.index(r.verdict), round(-r.score, 6)) for r in ranked]
+    assert keys == sorted(keys)
+    assert sorted(r.label for r in ranked) == sorted(cands.labels)
