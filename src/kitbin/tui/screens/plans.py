@@ -28,6 +28,8 @@ from kitbin.tui.widgets.plan.text import (
 )
 
 PLAN_TABS = ("plans", "demands", "ranked", "pick")
+#: Actions that need a worked-out plan.
+_PLAN_ACTIONS = {"use_bin", "clear_use", "role", "boards", "export", "reserve"}
 #: The widget of each tab that takes the focus when the tab is shown.
 PANE_FOCUS = {
     "plans": "#plan-list",
@@ -85,11 +87,11 @@ class PlanScreen(KitbinScreen):
 
     BINDINGS: ClassVar[list[BindingType]] = [
         Binding("escape", "back", "back"),
-        Binding("n", "new_plan", "new plan"),
-        Binding("u", "use_bin", "use this bin"),
+        Binding("n", "new_plan", "new"),
+        Binding("u", "use_bin", "use bin"),
         Binding("x", "clear_use", "clear overrides", show=False),
-        Binding("left_square_bracket", "role(-1)", "prev role", key_display="["),
-        Binding("right_square_bracket", "role(1)", "next role", key_display="]"),
+        Binding("left_square_bracket", "role(-1)", "role ←", key_display="["),
+        Binding("right_square_bracket", "role(1)", "role →", key_display="]"),
         Binding("plus", "boards(1)", "boards+", key_display="+", show=False),
         Binding("minus", "boards(-1)", "boards−", key_display="-", show=False),
         Binding("e", "export", "export"),
@@ -205,6 +207,7 @@ class PlanScreen(KitbinScreen):
     @on(PlanEvaluated)
     def _evaluated(self, message: PlanEvaluated) -> None:
         page = self.page = message.page
+        self.refresh_bindings()
         plan = page["plan"]
         overrides = ", ".join(f"{r}={b}" for r, b in page["use"].items()) or "none"
         self.query_one("#plan-status", Static).update(
@@ -293,6 +296,10 @@ class PlanScreen(KitbinScreen):
         return next((r for r in rm.rows if r.label == label), None)
 
     # -- keys ------------------------------------------------------------------------
+
+    def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
+        # keys that act on a worked-out plan stay out of the footer until there is one
+        return not (action in _PLAN_ACTIONS and self.page is None)
 
     def _need_plan(self) -> bool:
         if self.page is None:
