@@ -161,7 +161,8 @@ class CheckMatrix:
     required: np.ndarray
     grade: np.ndarray
     margin: np.ndarray
-    evidence_text: tuple[dict[int, str], ...] = field(default=())
+    #: The evidence table each requirement read (None where there was none).
+    tables: tuple[EvidenceTable | None, ...] = field(default=())
     #: Pairs of columns that are alternative ways to show the same thing (e.g. the
     #: i_rise rating or the predicted rise): either passing is enough.
     alternatives: tuple[tuple[int, int], ...] = ()
@@ -199,7 +200,7 @@ class CheckMatrix:
         """The checks of candidate ``k`` as objects."""
         out = []
         for j, r in enumerate(self.requirements):
-            ev = self.evidence_text[j].get(k, "") if self.evidence_text else ""
+            ev = self._evidence(j, k)
             out.append(
                 Check(
                     name=r.name,
@@ -216,6 +217,21 @@ class CheckMatrix:
                 )
             )
         return tuple(out)
+
+    def _evidence(self, j: int, k: int) -> str:
+        """One line on the evidence behind check ``j`` of candidate ``k``."""
+        t = self.tables[j] if j < len(self.tables) else None
+        r = self.requirements[j]
+        if t is None:
+            return "no evidence"
+        if r.quantity == "stock":
+            return f"{int(self.have[k, j])} free (on hand − reserved)"
+        if int(t.grade[k]) == UNKNOWN:
+            return "no evidence"
+        if r.quantity == "rise_load":
+            return f"predicted from DCR and R_th ({GRADE_NAMES[int(t.grade[k])]})"
+        text = t.row(k).describe()
+        return text.split(": ", 1)[1] if ": " in text else text
 
 
 def judge(
@@ -237,10 +253,12 @@ def judge(
     have = np.full((n, m), np.nan)
     req = np.full((n, m), np.nan)
     grade = np.full((n, m), UNKNOWN, dtype=np.int8)
+    used: list[EvidenceTable | None] = []
     for j, r in enumerate(requirements):
         limit = np.broadcast_to(np.asarray(r.limit, dtype=float), (n,))
         req[:, j] = limit
         t = tables.get(r.quantity)
+        used.append(t)
         if t is None:
             continue
         limit_known = ~np.isnan(limit)
@@ -259,7 +277,7 @@ def judge(
         ops = np.array([1.0 if r.op == ">=" else -1.0 for r in requirements])
         margin = rel * ops if m else rel
     margin = np.where(req == 0, np.nan, margin)
-    return CheckMatrix(tuple(requirements), status, have, req, grade, margin)
+    return CheckMatrix(tuple(requirements), status, have, req, grade, margin, tuple(used))
 
 
 def counted_table(quantity: str, available: np.ndarray) -> EvidenceTable:

@@ -576,6 +576,7 @@ def check_dict(c: Check) -> dict[str, Any]:
         "status": c.status,
         "margin": _num(c.margin),
         "reason": c.reason,
+        "evidence": c.evidence,
     }
 
 
