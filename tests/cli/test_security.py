@@ -73,15 +73,6 @@ def test_hostile_cells_are_stored_as_typed(hostile_db: Path) -> None:
     assert shown["notes"] == "=1+2" and shown["location"] == "=1+2"
 
 
-# ``kitbin export`` (services/importexport.py, not this suite's code) writes cells as
-# they are; the fix is reported to the lead. strict: this fails once exports are safe,
-# so the mark must then go.
-_EXPORT_UNGUARDED = pytest.mark.xfail(
-    strict=True, reason="kitbin export does not yet neutralise formula cells"
-)
-
-
-@_EXPORT_UNGUARDED
 @pytest.mark.parametrize("what", ["bins", "readings"])
 def test_export_neutralises_spreadsheet_formulas(hostile_db: Path, what: str) -> None:
     out = kb(hostile_db, "export", "-", "--what", what).stdout
@@ -89,11 +80,22 @@ def test_export_neutralises_spreadsheet_formulas(hostile_db: Path, what: str) ->
     assert _formula_cells(out) == []
 
 
-@_EXPORT_UNGUARDED
 def test_export_to_file_neutralises_too(hostile_db: Path, tmp_path: Path) -> None:
     file = tmp_path / "bins.csv"
     kb(hostile_db, "export", str(file), "--what", "bins")
     assert _formula_cells(file.read_text()) == []
+
+
+def test_guarded_cells_import_back_as_typed(hostile_db: Path, tmp_path: Path) -> None:
+    file = tmp_path / "bins.csv"
+    kb(hostile_db, "export", str(file), "--what", "bins")
+    fresh = tmp_path / "fresh.sqlite"
+    kb(fresh, "import", str(file))
+    for label in ("X-0", "X-3", "X-6"):
+        original = json.loads(kb(hostile_db, "bin", "show", label, "--json").stdout)
+        copied = json.loads(kb(fresh, "bin", "show", label, "--json").stdout)
+        for key in ("kit", "location", "package", "notes"):
+            assert copied[key] == original[key], (label, key)
 
 
 # -- file modes -----------------------------------------------------------------------

@@ -316,3 +316,39 @@ def inventory_rm(store, label: str) -> None:
     """Remove a bin a test added (the CLI has no delete; done through the session)."""
     with store.transaction() as session:
         session.delete(queries.bin_by_label(session, label))
+
+
+_capture_cells = st.one_of(
+    st.floats(allow_nan=True, allow_infinity=True).map(repr),
+    st.integers(-(10**6), 10**6).map(str),
+    st.sampled_from(["", "nan", "1,5", "-", "e", "time", "CH1", "1e-9", "0.1"]),
+)
+
+
+@settings(FUZZ, max_examples=40)
+@given(
+    content=st.one_of(
+        st.binary(max_size=300),
+        st.builds(
+            lambda rows, sep: "\n".join(sep.join(r) for r in rows).encode(),
+            st.lists(st.lists(_capture_cells, min_size=1, max_size=3), max_size=30),
+            st.sampled_from([",", ";", "\t"]),
+        ),
+    )
+)
+def test_cli_capture_analysis_prints_one_line(fuzz_store, content) -> None:
+    # The reader's own properties are in test_capture_reader_props.py; this is the
+    # whole `kitbin ramp --save` path: one line for bad input, nothing stored.
+    store, folder = fuzz_store
+    path = folder / "capture.csv"
+    path.write_bytes(content)
+    before = _snapshot(store)
+    args = ["--db", store.url, "ramp", str(path), "--bin", "L-01", "--sense", "0.1ohm",
+            "--vl", "12V", "--save"]  # fmt: skip
+    result = runner.invoke(app_for_tests(), args)
+    if result.exit_code == 0:
+        return
+    lines = [ln for ln in result.stderr.strip().splitlines() if not ln.startswith("caution:")]
+    assert len(lines) == 1 and lines[0].startswith("kitbin: error: "), lines
+    assert isinstance(result.exception, SystemExit)
+    assert _snapshot(store) == before

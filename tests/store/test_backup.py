@@ -196,3 +196,76 @@ def test_an_older_backup_is_upgraded_on_restore(source, databases, tmp_path: Pat
     for table in at_0001:
         assert restored[table] == rows[table], table
     assert restored["plan"] == [] and restored["pick_list"] == []
+
+
+def _log_consistent(url: str) -> dict[str, int]:
+    """Per bin: the move log adds up to the quantity and qty_after runs on; returns qty."""
+    from kitbin.store.models import StockMove
+
+    out = {}
+    with open_store(url, create=False) as store, store.transaction() as s:
+        for b in s.scalars(select(Bin).order_by(Bin.id)):
+            moves = s.execute(
+                select(StockMove.delta, StockMove.qty_after)
+                .where(StockMove.bin_id == b.id)
+                .order_by(StockMove.id)
+            ).all()
+            running = 0
+            for delta, after in moves:
+                running += delta
+                assert after == running, b.label
+            assert running == b.qty, b.label
+            out[b.label] = b.qty
+    return out
+
+
+def test_a_backup_taken_while_stock_moves_is_a_consistent_snapshot(
+    backend: str, databases, tmp_path: Path
+) -> None:
+    import random
+    import threading
+
+    from kitbin.errors import StockError
+    from kitbin.services import backup as backup_service
+    from kitbin.services import inventory
+
+    url = databases.new(backend)
+    store = open_store(url)
+    for i in range(3):
+        inventory.add_bin(store, f"L-{i}", "inductor", nominal="10uH", qty=200)
+    stop = threading.Event()
+    moves = [0]
+
+    def churn() -> None:
+        writer = open_store(url, create=False)
+        rng = random.Random(5)
+        try:
+            while not stop.is_set():
+                try:
+                    inventory.adjust_stock(
+                        writer, f"L-{rng.randrange(3)}", rng.choice((-2, 1)), "churn"
+                    )
+                    moves[0] += 1
+                except StockError:
+                    pass
+        finally:
+            writer.close()
+
+    thread = threading.Thread(target=churn)
+    thread.start()
+    files = []
+    try:
+        for k, fmt in enumerate(_formats(url) * 2):
+            file = tmp_path / f"during-{k}.{fmt}"
+            backup_service.backup(store, str(file), fmt=fmt)
+            files.append(file)
+    finally:
+        stop.set()
+        thread.join()
+        store.close()
+    assert moves[0] > 0
+    for file in files:
+        target = databases.new("sqlite")
+        kb(target, "restore", str(file))
+        assert set(_log_consistent(target)) == {"L-0", "L-1", "L-2"}
+    _log_consistent(url)
