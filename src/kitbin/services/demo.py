@@ -25,6 +25,7 @@ from typing import Any
 from kitbin.errors import StoreError
 from kitbin.quantities import NOMINAL_QUANTITY, QUANTITIES
 from kitbin.services import inputs
+from kitbin.services.picking import demo_build_plan, tour_match_and_pick
 from kitbin.store import Store, queries
 from kitbin.store.models import Bin, BinProperty, Kit, Reading
 from kitbin.store.stock import move_stock
@@ -304,7 +305,7 @@ def build_bench_captures(store: Store, workshop: dict[str, Any], rng: random.Ran
 
 
 #: Steps run in order on the fresh demo database; append to add more.
-BUILD_STEPS: list[BuildStep] = [build_inventory, build_bench_captures]
+BUILD_STEPS: list[BuildStep] = [build_inventory, build_bench_captures, demo_build_plan]
 
 
 # -- the tour ----------------------------------------------------------------------
@@ -406,7 +407,14 @@ def tour_next(store: Store) -> TourSection:
 
 
 #: Steps of the tour, in order; a step may return None to say nothing.
-TOUR_STEPS: list[TourStep] = [tour_intro, tour_shelf, tour_bin, tour_evidence, tour_next]
+TOUR_STEPS: list[TourStep] = [
+    tour_intro,
+    tour_shelf,
+    tour_bin,
+    tour_evidence,
+    tour_match_and_pick,
+    tour_next,
+]
 
 
 def tour(store: Store) -> list[TourSection]:
