@@ -150,7 +150,28 @@ def local_slope(
     return slope, centre
 
 
-def _box_slope(sums: np.ndarray, time: np.ndarray, m: int) -> np.ndarray:
+def _uniform_step(time: np.ndarray) -> float | None:
+    """The sample interval (s) when the sampling is uniform, else None."""
+    n = time.shape[0]
+    steps = time[1 : min(n, 100_001)] - time[: min(n, 100_001) - 1]
+    dt = float(np.median(steps))
+    span = float(time[-1] - time[0])
+    if dt > 0 and abs(span - (n - 1) * dt) <= 1e-6 * span and np.ptp(steps) <= 1e-3 * dt:
+        return dt
+    return None
+
+
+def _merged_windows(starts: np.ndarray, ends: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Union of sorted-by-start index windows as disjoint (start, end) pairs."""
+    order = np.argsort(starts, kind="stable")
+    starts, ends = starts[order], np.maximum.accumulate(ends[order])
+    new = np.concatenate(([True], starts[1:] > ends[:-1] + 1))
+    first = np.flatnonzero(new)
+    last = np.concatenate((first[1:] - 1, [starts.size - 1]))
+    return starts[first], ends[last]
+
+
+def _box_slope(sums: np.ndarray, time: np.ndarray, m: int, dt: float | None = None) -> np.ndarray:
     """Two-box slope at every sample from the running sums of the values.
 
     For k in [m, n − m): (mean of k+1..k+m − mean of k−m..k−1) / (same for time).
@@ -165,10 +186,9 @@ def _box_slope(sums: np.ndarray, time: np.ndarray, m: int) -> np.ndarray:
     np.subtract(sums[2 * m + 1 :], sums[m + 1 : n - m + 1], out=body)
     body -= sums[m : n - m]
     body += sums[: n - 2 * m]
-    steps = time[1 : min(n, 100_001)] - time[: min(n, 100_001) - 1]
-    dt = float(np.median(steps))
-    span = float(time[-1] - time[0])
-    if dt > 0 and abs(span - (n - 1) * dt) <= 1e-6 * span and np.ptp(steps) <= 1e-3 * dt:
+    if dt is None and time.shape[0] == n:
+        dt = _uniform_step(time)
+    if dt is not None:
         body /= m * (m + 1) * dt  # uniform sampling: the box centres are m + 1 samples apart
     else:
         ts = _running_sum(time - time[0])
@@ -282,10 +302,33 @@ def analyse_ramp(
             "noisy or coarse capture: the slope window is limited by the ramp length, "
             "so L(i) is noisier than usual"
         )
+    # 3. keep only the samples around the pulses: a low-duty capture is mostly idle.
+    # A ramp starts at most ~0.75 ramp lengths before its 25 % crossing and peaks
+    # within ~0.4 after its 60 % crossing (the slope only grows with saturation).
+    sel = None
+    dt_uniform = _uniform_step(t)
+    pad = 3 * m + 8
+    w_start, w_end = _merged_windows(
+        np.maximum(lo_marks - int(0.75 * n_ramp) - pad, 0),
+        np.minimum(rises + int(1.25 * n_ramp) + pad, n - 1),
+    )
+    if int((w_end - w_start + 1).sum()) < 0.7 * n:
+        sel = _ranges(w_start, w_end, 1)
+        t, current = t[sel], current[sel]
+        if measured_vl:
+            vl_arr = vl_arr[sel]
+        rises, lo_marks = np.searchsorted(sel, rises), np.searchsorted(sel, lo_marks)
     sums = _running_sum(current)
-    slope = _box_slope(sums, t, m)
+    slope = _box_slope(sums, t, m, dt_uniform)
+    if sel is not None:
+        # boxes must not reach across the junction of two windows
+        lengths = w_end - w_start + 1
+        offsets = np.concatenate(([0], np.cumsum(lengths)[:-1]))
+        edge = np.minimum(m, lengths) - 1
+        slope[_ranges(offsets, offsets + edge, 1)] = np.nan
+        slope[_ranges(offsets + lengths - 1 - edge, offsets + lengths - 1, 1)] = np.nan
 
-    # 3. rising segments: runs where the slope stays above a fraction of the typical one
+    # 4. rising segments: runs where the slope stays above a fraction of the typical one
     middle = slope[_ranges(lo_marks, rises - 1, max(1, m // 4))]
     typical = float(np.nanmedian(middle)) if np.isfinite(middle).any() else float("nan")
     if not typical > 0:
@@ -384,7 +427,7 @@ def analyse_ramp(
         points=int(i_pts.size),
         noise_A=sigma,
         lsb_A=lsb,
-        window_s=float(2 * m * np.median(np.diff(t[: min(n, 10_001)]))),
+        window_s=float(2 * m * (dt_uniform or np.median(np.diff(t[: min(t.size, 10_001)])))),
         i_min_A=i_min,
         i_max_A=i_max,
         l0_spread=spread,
@@ -399,7 +442,14 @@ def analyse_ramp(
         curve_L_H=medians,
         curve_n=counts,
         l0_window_A=(float(w_lo), float(w_hi)),
-        segments=tuple((int(a), int(b)) for a, b in zip(starts, ends, strict=True)),
+        segments=tuple(
+            (int(a), int(b))
+            for a, b in zip(
+                starts if sel is None else sel[starts],
+                ends if sel is None else sel[ends],
+                strict=True,
+            )
+        ),
         quality=quality,
         drops=tuple(drops),
     )
