@@ -210,3 +210,21 @@ def test_inductor_voltage_must_stay_positive() -> None:
     t, i = _trace(MODELS["hard"], "pulse", 2.0)
     with pytest.raises(CaptureError, match="not positive"):
         analyse_ramp(t, i * R_SENSE, r_sense=R_SENSE, v_l=1.0, r_loop=1.0)
+
+
+def test_measured_channel_equal_to_the_constant_gives_the_same_answer() -> None:
+    # a low-duty switching capture (analysed on windows around the pulses): a V_L
+    # channel that reads the constant supply must give exactly the constant's result
+    model = MODELS["hard"]
+    t, i = _trace(model, "switching", 1.5 * model.isat(0.3))
+    rng = np.random.default_rng(2)
+    v = scope(i * R_SENSE, rng, noise=0.002, bits=8, full_scale=(-0.02, 0.4))
+    const = analyse_ramp(t, v, r_sense=R_SENSE, v_l=V_SUPPLY, r_loop=R_LOOP)
+    chan = analyse_ramp(t, v, r_sense=R_SENSE, v_l=np.full(t.size, V_SUPPLY), r_loop=R_LOOP)
+    assert chan.l0_H == pytest.approx(const.l0_H, rel=1e-9)
+    assert chan.isat_A == pytest.approx(const.isat_A, rel=1e-9)
+    assert chan.segments == const.segments
+    # segments are sample indices of the capture, on rising current
+    assert len(const.segments) == 16
+    for a, b in const.segments:
+        assert 0 <= a < b < t.size and i[b] > i[a]
