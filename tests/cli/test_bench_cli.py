@@ -374,3 +374,14 @@ def test_load_demo_captures_saves_every_manifest_entry(db: Path) -> None:
     con.close()
     assert n_captures == len(out)
     assert bounds == {"L-05": "=", "L-11": ">=", "L-14": "="}
+
+
+def test_heat_on_a_bin_not_in_the_inventory(db: Path) -> None:
+    path = str(_demo("L-05_heat_1A5.tsv"))
+    ok = kb(db, "heat", path, "--bin", "L-77", "--current", "1.5A", "--json")
+    assert ok.exit_code == 0, ok.stderr
+    assert "no bin labelled 'L-77'" in json.loads(ok.stdout)["notes"][0]
+    before = snapshot(db)
+    refused = kb(db, "heat", path, "--bin", "L-77", "--current", "1.5A", "--save")
+    assert refused.exit_code == 4 and "no bin labelled 'L-77'" in errors(refused)[0]
+    assert snapshot(db) == before

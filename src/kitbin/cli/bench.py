@@ -165,6 +165,8 @@ def register(app: typer.Typer) -> None:
                 data = bench.heat(
                     content, params, label=bin_label, file_name=path.name, store=store, save=save
                 )
+        for note in data.get("notes", []):
+            typer.echo(f"note: {note}", err=True)
         typer.echo(_CAUTION, err=True)
         if as_json:
             print_json(data)

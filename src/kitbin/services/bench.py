@@ -472,20 +472,24 @@ def heat(
     previous: list[tuple[float, float]] = []
     if dcr is not None:
         dcr_source = "given"
+    notes: list[str] = []
     if store is not None:
         with store.transaction() as session:
-            b = _bin(session, label)
-            if dcr is None:
-                found = _bin_dcr(b)
-                if found is not None:
-                    dcr, dcr_temp, dcr_source = found
-            previous = [
-                (float(c.results["current_A"]), float(c.results["rise_ss_K"]))
-                for c in b.captures
-                if c.kind == "heat"
-                and c.results.get("rise_ss_K") is not None
-                and "poorly constrained" not in c.results.get("flags", [])
-            ]
+            b = _lookup_bin(session, label, must=save)
+            if b is None:
+                notes.append(f"no bin labelled '{label}' in the inventory: no DCR, no earlier logs")
+            else:
+                if dcr is None:
+                    found = _bin_dcr(b)
+                    if found is not None:
+                        dcr, dcr_temp, dcr_source = found
+                previous = [
+                    (float(c.results["current_A"]), float(c.results["rise_ss_K"]))
+                    for c in b.captures
+                    if c.kind == "heat"
+                    and c.results.get("rise_ss_K") is not None
+                    and "poorly constrained" not in c.results.get("flags", [])
+                ]
     rating = rate_heating(
         fit, params.current_A, r_dcr=dcr, t_dcr=dcr_temp, allowed_rise=params.rise_K
     )
@@ -493,6 +497,7 @@ def heat(
     digest = hashlib.sha256(content).hexdigest()
     data.update({"bin": label, "file": file_name, "sha256": digest})
     data["loss_split"] = _loss_split([*previous, (params.current_A, fit.rise_ss_K)])
+    data["notes"] = notes
     data["capture_id"], data["readings"] = None, []
     if save:
         if store is None:
@@ -757,6 +762,18 @@ def _bin(session: Any, label: str) -> Any:
     from kitbin.services.inventory import get_bin
 
     return get_bin(session, label)
+
+
+def _lookup_bin(session: Any, label: str, *, must: bool) -> Any:
+    """The bin, or None when it does not exist and ``must`` is False."""
+    from kitbin.errors import NotFoundError
+
+    try:
+        return _bin(session, label)
+    except NotFoundError:
+        if must:
+            raise
+        return None
 
 
 def _refuse_duplicate(session: Any, b: Any, digest: str, label: str) -> None:
