@@ -10,6 +10,7 @@ No domain rule lives here: evidence comes from
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from typing import Any
 
 from kitbin.errors import KitbinError
@@ -46,13 +47,23 @@ class ShelfEvidence:
         self.kinds = kinds
 
     def lines(self, row: int) -> list[str]:
-        """One line per key quantity of the bin in stock row ``row``."""
+        """One line per key quantity of the bin in stock row ``row`` (grade and interval;
+        specimen counts and property sources are in the bin view)."""
         kind = self.kinds[row]
         wanted = list(inventory.KEY_QUANTITIES.get(kind, ()))
         nominal_q = NOMINAL_QUANTITY.get(kind)
         if nominal_q and nominal_q not in wanted:
             wanted.insert(0, nominal_q)
-        return [self.tables[q].row(row).describe() for q in wanted if q in self.tables]
+        out = []
+        for q in wanted:
+            if q not in self.tables:
+                continue
+            ev = self.tables[q].row(row)
+            if q != nominal_q:
+                # the tables keep no property source: say none rather than a wrong one
+                ev = replace(ev, source="")
+            out.append(ev.describe())
+        return out
 
 
 def shelf_rows(store: Store) -> tuple[list[dict[str, Any]], ShelfEvidence]:

@@ -127,7 +127,6 @@ def shape_row(data: dict[str, Any]) -> ShelfRow:
         data.get("marking"),
         data.get("package"),
         data.get("location"),
-        data.get("notes"),
     )
     return ShelfRow(
         label=data["label"],
@@ -202,7 +201,7 @@ class KindTerm:
 
 @dataclass(frozen=True)
 class TextTerm:
-    """Free text: found in label, kind, kit, marking, package, location or notes."""
+    """Free text: found in label, kind, kit, marking, package or location."""
 
     text: str
 
@@ -264,7 +263,7 @@ def parse_filter(text: str) -> ShelfFilter:
     - ``>=10``: at least ten parts free;
     - ``kit:NAME``: bins of a kit whose name contains NAME (``_`` for a space);
     - anything else: text found in label, kind, kit, marking, package, location
-      or notes (case-insensitive).
+      (case-insensitive).
     """
     terms: list[Term] = []
     problems: list[str] = []
