@@ -93,3 +93,17 @@ def test_capture_results_named_with_units():
     )
     assert lines[0] == "Isat10% 1.05 A, Isat20% not reached (≥ 1.73 A)"
     assert "L0 (low bias): 9.59 µH" in lines
+
+
+def test_new_bin_arguments():
+    from kitbin.tui.screens.newbin import bin_arguments
+
+    args, problems = bin_arguments({"label": "L-21", "kind": "inductor", "marking": "100"})
+    assert problems == [] and args == {
+        "label": "L-21",
+        "kind": "inductor",
+        "qty": 0,
+        "marking": "100",
+    }
+    args, problems = bin_arguments({"label": "", "kind": "inductor", "qty": "-3"})
+    assert args is None and len(problems) == 2

@@ -226,3 +226,29 @@ def test_stock_change_and_a_refused_take(demo_db: str) -> None:
 
     asyncio.run(scenario())
     assert _stock(demo_db, "L-05") == (qty + 5, moves + 1)
+
+
+def test_a_new_user_adds_a_bin_to_an_empty_database(tmp_path: Path) -> None:
+    db = str(tmp_path / "new.sqlite")
+
+    async def scenario() -> None:
+        app = make_app(db)
+        async with app.run_test(size=(80, 24)) as pilot:
+            await _until(pilot, lambda: app.store is not None)
+            await _until(
+                pilot, lambda: "no bins yet" in str(app.shelf.query_one("#shelf-status").content)
+            )
+            await pilot.press("n")
+            await _until(pilot, lambda: _screen(app, "NewBinScreen"))
+            for text in ("L-21", "inductor", "100"):  # typed; enter moves to the next field
+                await pilot.press(*text, "enter")
+            app.screen.query_one("#newbin-qty").value = "12"
+            await pilot.press("ctrl+s")
+            await _until(pilot, lambda: _screen(app, "ShelfScreen"))
+            await _until(pilot, lambda: len(app.shelf.rows) == 1)
+            assert app.shelf.rows[0].nominal.text == "10.0µH"  # from the numeric code 100
+
+    asyncio.run(scenario())
+    with open_store(db) as store:
+        page = inventory.show_bin(store, "L-21")
+    assert page["qty"] == 12 and page["marking"] == "100" and len(page["moves"]) == 1

@@ -25,6 +25,7 @@ def _screens() -> list[tuple[str, type]]:
     from kitbin.tui.screens.bin import BinScreen
     from kitbin.tui.screens.capture import CaptureScreen
     from kitbin.tui.screens.kits import KitsScreen
+    from kitbin.tui.screens.newbin import NewBinScreen
     from kitbin.tui.screens.plans import ExportScreen, NewPlanScreen, PlanScreen
     from kitbin.tui.screens.record import RecordScreen
     from kitbin.tui.screens.shelf import ShelfScreen
@@ -36,6 +37,7 @@ def _screens() -> list[tuple[str, type]]:
         ("shelf", ShelfScreen),
         ("shelf list", ShelfGrid),
         ("kits", KitsScreen),
+        ("new bin", NewBinScreen),
         ("bin", BinScreen),
         ("record readings", RecordScreen),
         ("stock ±", StockScreen),

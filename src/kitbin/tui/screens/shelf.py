@@ -39,6 +39,7 @@ _GRID_ACTIONS = {
     "quit",
     "open_bin",
     "reload",
+    "new_bin",
 }
 
 
@@ -56,6 +57,7 @@ class ShelfScreen(KitbinScreen):
         Binding("c", "capture", "capture"),
         Binding("p", "plans", "plans"),
         Binding("k", "kits", "kits"),
+        Binding("n", "new_bin", "new bin", show=False),
         Binding("s", "sort_next", "sort"),
         Binding("S", "sort_reverse", "reverse sort", key_display="S", show=False),
         Binding("ctrl+r", "reload", "reload", show=False),
@@ -152,7 +154,7 @@ class ShelfScreen(KitbinScreen):
         arrow = "▼" if self.descending else "▲"
         text = f"{shown:,} of {total:,} bins · sorted by {self.sort_column} {arrow}"
         if total == 0:
-            text = "no bins yet: add some with `kitbin bin add`, or try `kitbin demo`"
+            text = "no bins yet: press n to add one, or try `kitbin demo --ui`"
         status.update(text)
 
     def _draw_header(self) -> None:
@@ -298,6 +300,12 @@ class ShelfScreen(KitbinScreen):
                 self.refilter()
 
         self.app.push_screen(KitsScreen(self.kits), chosen)
+
+    def action_new_bin(self) -> None:
+        from kitbin.tui.screens.newbin import NewBinScreen
+
+        if self._store_ready():
+            self.app.push_screen(NewBinScreen())
 
     def action_quit(self) -> None:
         self.app.exit()

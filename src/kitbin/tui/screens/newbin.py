@@ -1,0 +1,119 @@
+"""Add a bin from the shelf: label, kind, value or marking, place and count."""
+
+from __future__ import annotations
+
+from typing import Any, ClassVar
+
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding, BindingType
+from textual.containers import Horizontal, Vertical
+from textual.message import Message
+from textual.widgets import Footer, Input, Label, Static
+
+from kitbin.tui.markup import plain
+from kitbin.tui.messages import InventoryChanged
+from kitbin.tui.screens.base import KitbinModal
+
+#: (field, label, hint)
+BIN_FIELDS: tuple[tuple[str, str, str], ...] = (
+    ("label", "label", "e.g. L-21"),
+    ("kind", "kind", "inductor, resistor, capacitor, diode, controller or other"),
+    ("marking", "marking", "as printed: 100, 4k7, brown black red gold (optional)"),
+    ("nominal", "nominal", "e.g. 10uH (optional when the marking says it)"),
+    ("tolerance", "tolerance", "e.g. 20% (optional)"),
+    ("location", "location", "e.g. cabinet A, drawer 3"),
+    ("kit", "kit", "name of an existing kit (optional)"),
+    ("qty", "count", "parts in the bin now, e.g. 12"),
+)
+
+
+class BinAdded(Message):
+    """A bin was stored."""
+
+    def __init__(self, data: dict[str, Any]) -> None:
+        super().__init__()
+        self.data = data
+
+
+def bin_arguments(values: dict[str, str]) -> tuple[dict[str, Any] | None, list[str]]:
+    """Arguments of :func:`kitbin.services.inventory.add_bin` from the field texts, or
+    None and the problems (the service checks values, units and markings itself)."""
+    problems = []
+    label = values.get("label", "").strip()
+    kind = values.get("kind", "").strip()
+    if not label:
+        problems.append("give the bin a label")
+    if not kind:
+        problems.append("give its kind")
+    qty_text = values.get("qty", "").strip() or "0"
+    if not qty_text.isdigit():
+        problems.append(f"count '{qty_text}': a whole number, 0 or more")
+    if problems:
+        return None, problems
+    args: dict[str, Any] = {"label": label, "kind": kind, "qty": int(qty_text)}
+    for key in ("marking", "nominal", "tolerance", "location", "kit"):
+        text = values.get(key, "").strip()
+        if text:
+            args[key] = text
+    return args, []
+
+
+class NewBinScreen(KitbinModal):
+    """A new bin; its starting count is logged as its first stock move."""
+
+    BINDINGS: ClassVar[list[BindingType]] = [
+        Binding("ctrl+s", "save", "add bin", priority=True),
+        Binding("escape", "cancel", "cancel"),
+    ]
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Static("New bin (more with `kitbin bin edit`)", classes="dialog-title")
+            for key, label, hint in BIN_FIELDS:
+                with Horizontal(classes="field-row"):
+                    yield Label(label)
+                    yield Input(placeholder=hint, id=f"newbin-{key}", classes="field-input")
+            yield Static("", id="newbin-problems", classes="check-bad")
+        yield Footer(compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#newbin-label", Input).focus()
+
+    @on(Input.Submitted)
+    def _next(self) -> None:
+        self.focus_next()
+
+    def action_save(self) -> None:
+        values = {k: self.query_one(f"#newbin-{k}", Input).value for k, *_ in BIN_FIELDS}
+        args, problems = bin_arguments(values)
+        if args is None:
+            text = "nothing written: " + "; ".join(problems)
+            self.query_one("#newbin-problems", Static).update(plain(text))
+            self.notify(text, severity="error")
+            return
+        self.add(self.app.store, args)
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="newbin")
+    def add(self, store: Any, args: dict[str, Any]) -> None:
+        """Store the bin (in a thread; nothing written on a bad value or marking)."""
+        from kitbin.services import inventory
+
+        label, kind = args.pop("label"), args.pop("kind")
+        self.post_message(BinAdded(inventory.add_bin(store, label, kind, **args)))
+
+    @on(BinAdded)
+    def _added(self, message: BinAdded) -> None:
+        d = message.data
+        self.notify(f"added bin {d['label']} ({d['kind']}, {d['qty']} parts)")
+        self.app.post_message(InventoryChanged(d["label"]))
+        self.dismiss(d["label"])
+
+    def worker_failed(self, worker: Any) -> None:
+        from kitbin.tui.app import error_line
+
+        line = "nothing written: " + error_line(worker.error)
+        self.query_one("#newbin-problems", Static).update(plain(line))
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
