@@ -36,7 +36,7 @@ _LEVEL_LO, _LEVEL_HI = 0.25, 0.60
 #: typical slope on the ramp's middle part.
 _SLOPE_FRACTION = 0.35
 #: Most (current, L) points binned.
-_MAX_POINTS = 30_000
+_MAX_POINTS = 20_000
 #: Target relative slope error per point from noise (the bin median averages further).
 _POINT_ERROR = 0.05
 
@@ -150,6 +150,30 @@ def local_slope(
     return slope, centre
 
 
+class _Windows:
+    """Disjoint sample windows laid end to end in a compact array."""
+
+    def __init__(self, starts: np.ndarray, lengths: np.ndarray) -> None:
+        self.starts = starts
+        self.lengths = lengths
+        self.offsets = np.concatenate(([0], np.cumsum(lengths)[:-1]))
+
+    def gather(self, values: np.ndarray) -> np.ndarray:
+        """The windows' samples, concatenated (slices copied, no index array)."""
+        spans = zip(self.starts.tolist(), self.lengths.tolist(), strict=True)
+        return np.concatenate([values[a : a + k] for a, k in spans])
+
+    def to_compact(self, sample: np.ndarray) -> np.ndarray:
+        """Compact positions of sample indices that lie inside the windows."""
+        w = np.searchsorted(self.starts, sample, side="right") - 1
+        return self.offsets[w] + (sample - self.starts[w])
+
+    def to_sample(self, compact: np.ndarray) -> np.ndarray:
+        """Sample indices of compact positions."""
+        w = np.searchsorted(self.offsets, compact, side="right") - 1
+        return self.starts[w] + (compact - self.offsets[w])
+
+
 def _uniform_step(time: np.ndarray) -> float | None:
     """The sample interval (s) when the sampling is uniform, else None."""
     n = time.shape[0]
@@ -253,8 +277,9 @@ def analyse_ramp(
         raise CaptureError(f"{source}: sense resistance must be positive, got {r_sense!r}")
     if not (r_loop >= 0 and math.isfinite(r_loop)):
         raise CaptureError(f"{source}: loop resistance must not be negative, got {r_loop!r}")
-    current = np.asarray(v_sense, dtype=float) / r_sense
-    n = current.shape[0]
+    # the detection runs on the sense voltage itself (no full-length current array)
+    raw = np.asarray(v_sense, dtype=float)
+    n = raw.shape[0]
     if t.shape[0] != n or n < 16:
         raise CaptureError(f"{source}: need at least 16 samples of time and current")
     measured_vl = not np.isscalar(v_l) and np.ndim(v_l) > 0
@@ -268,10 +293,10 @@ def analyse_ramp(
             raise CaptureError(f"{source}: inductor voltage must be positive, got {v_l!r}")
 
     step = max(1, n // 50_000)  # percentiles of a 50,000-sample subsample
-    sub = current[::step]
+    sub = raw[::step] / r_sense
     lo, hi = (float(v) for v in np.percentile(sub, [0.5, 99.5]))
     swing = hi - lo
-    sigma = _noise(current)
+    sigma = _noise(raw) / r_sense
     lsb = _quantum(sub, swing)
     sigma_eff = math.sqrt(sigma**2 + (lsb**2 / 12.0 if lsb else 0.0))
     if not swing > 0 or swing < 10.0 * sigma_eff:
@@ -282,9 +307,9 @@ def analyse_ramp(
 
     # 1. find pulses with a Schmitt trigger on lightly smoothed current
     k_s = int(min(max(1, math.ceil((sigma_eff / (0.03 * swing)) ** 2)), max(1, n // 50)))
-    level = _moving_mean(current, k_s) if k_s > 1 else current
+    level = _moving_mean(raw, k_s) if k_s > 1 else raw
     lvl_lo, lvl_hi = lo + _LEVEL_LO * swing, lo + _LEVEL_HI * swing
-    rises, lo_marks = _schmitt_rises(level, lvl_lo, lvl_hi)
+    rises, lo_marks = _schmitt_rises(level, lvl_lo * r_sense, lvl_hi * r_sense)
     if rises.size == 0:
         raise CaptureError(f"{source}: no rising current segment found")
     spans = rises - lo_marks
@@ -305,25 +330,28 @@ def analyse_ramp(
     # 3. keep only the samples around the pulses: a low-duty capture is mostly idle.
     # A ramp starts at most ~0.75 ramp lengths before its 25 % crossing and peaks
     # within ~0.4 after its 60 % crossing (the slope only grows with saturation).
-    sel = None
+    windows = None
     dt_uniform = _uniform_step(t)
     pad = 3 * m + 8
     w_start, w_end = _merged_windows(
         np.maximum(lo_marks - int(0.75 * n_ramp) - pad, 0),
         np.minimum(rises + int(1.25 * n_ramp) + pad, n - 1),
     )
-    if int((w_end - w_start + 1).sum()) < 0.7 * n:
-        sel = _ranges(w_start, w_end, 1)
-        t, current = t[sel], current[sel]
+    lengths = w_end - w_start + 1
+    if int(lengths.sum()) < 0.7 * n:
+        windows = _Windows(w_start, lengths)
+        t = windows.gather(t)
+        current = windows.gather(raw) / r_sense
         if measured_vl:
-            vl_arr = vl_arr[sel]
-        rises, lo_marks = np.searchsorted(sel, rises), np.searchsorted(sel, lo_marks)
+            vl_arr = windows.gather(vl_arr)
+        rises, lo_marks = windows.to_compact(rises), windows.to_compact(lo_marks)
+    else:
+        current = raw / r_sense
     sums = _running_sum(current)
     slope = _box_slope(sums, t, m, dt_uniform)
-    if sel is not None:
+    if windows is not None:
         # boxes must not reach across the junction of two windows
-        lengths = w_end - w_start + 1
-        offsets = np.concatenate(([0], np.cumsum(lengths)[:-1]))
+        offsets = windows.offsets
         edge = np.minimum(m, lengths) - 1
         slope[_ranges(offsets, offsets + edge, 1)] = np.nan
         slope[_ranges(offsets + lengths - 1 - edge, offsets + lengths - 1, 1)] = np.nan
@@ -346,7 +374,7 @@ def analyse_ramp(
         )
 
     # points a window apart are strongly correlated: a quarter window apart is
-    # plenty, and more than ~30,000 points only slow the binning (a sort)
+    # plenty, and more than ~20,000 points only slow the binning (a sort)
     covered = int((ends - starts + 1).sum())
     stride = max(1, m // 4, covered // _MAX_POINTS)
     idx = _ranges(starts, ends, stride)
@@ -445,8 +473,8 @@ def analyse_ramp(
         segments=tuple(
             (int(a), int(b))
             for a, b in zip(
-                starts if sel is None else sel[starts],
-                ends if sel is None else sel[ends],
+                starts if windows is None else windows.to_sample(starts),
+                ends if windows is None else windows.to_sample(ends),
                 strict=True,
             )
         ),
