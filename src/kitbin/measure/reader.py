@@ -163,7 +163,7 @@ def read_capture(
         The file's bytes (or text); a seekable binary stream positioned at its
         start; or a path (``pathlib.Path``), which is only opened to read, and
         which lets pandas parse a large file on several threads (pandas 3 does so
-        for a path, never for a stream: measured 2× faster on 2 cores).
+        for a path, never for a stream: about 1.5× faster on 2 cores).
     columns
         Channels to keep, by column name (with or without its unit) or 1-based
         column number in the file; all non-time columns when None.
