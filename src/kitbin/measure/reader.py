@@ -118,6 +118,8 @@ class Capture:
         ``"column NAME"`` or ``"dt"``: where the time base came from.
     layout
         The sniffed layout.
+    notes
+        What was assumed while reading (a time column without a unit, ...).
     """
 
     time: np.ndarray
@@ -211,7 +213,7 @@ def _assemble(
 ) -> Capture:
     names = list(layout.names)
     scales = [_unit_of(nm) for nm in names]
-    detected_time = _pick_time(names, columns_data, time_col, None, source)
+    detected_time = _pick_time(names, columns_data, time_col, source)
     time_index = detected_time if dt is None or time_col is not None else None
     if columns:
         wanted = [_column_index(c, names, source) for c in columns]
@@ -232,6 +234,8 @@ def _assemble(
         if scale != 1.0 or offset != 0.0:
             time = time * scale + offset
         time_source = f"column {names[time_index]!r}"
+        if scales[time_index] is None:
+            notes.append(f"time column {names[time_index]!r} names no unit: read as seconds")
     else:
         interval = dt if dt is not None else _interval_from_metadata(layout.metadata)
         if interval is None:
@@ -241,6 +245,8 @@ def _assemble(
             )
         time = np.arange(columns_data[0].shape[0], dtype=float) * interval
         time_source = "dt" if dt is not None else "metadata interval"
+        if dt is None:
+            notes.append(f"sample interval {interval:.6g} s taken from the file's metadata")
 
     time = _bridge_gaps(time, names[time_index] if time_index is not None else "time", source)
     if not _increasing(time):
@@ -604,13 +610,10 @@ def _pick_time(
     names: list[str],
     table: list[np.ndarray],
     time_col: str | int | None,
-    dt: float | None,
     source: str,
 ) -> int | None:
     if time_col is not None:
         return _column_index(time_col, names, source)
-    if dt is not None:
-        return None
     for k, name in enumerate(names):
         unit = _unit_of(name)
         if unit is not None and unit[2] == "s":

@@ -238,7 +238,7 @@ def ramp_summary(run: RampRun) -> dict[str, Any]:
         "time_source": run.capture.time_source,
         "sense_column": run.sense_column,
         "vl_column": run.vl_column,
-        "warnings": list(q.warnings),
+        "warnings": [*run.capture.notes, *q.warnings],
         "curve": {
             "i_A": [float(v) for v in r.curve_i_A],
             "L_H": [float(v) for v in r.curve_L_H],
@@ -497,7 +497,7 @@ def heat(
     digest = hashlib.sha256(content).hexdigest()
     data.update({"bin": label, "file": file_name, "sha256": digest})
     data["loss_split"] = _loss_split([*previous, (params.current_A, fit.rise_ss_K)])
-    data["notes"] = notes
+    data["notes"] = [*cap.notes, *notes]
     data["capture_id"], data["readings"] = None, []
     if save:
         if store is None:
