@@ -68,6 +68,7 @@ def test_no_header_first_column_steady_is_time() -> None:
     assert cap.layout.has_header is False
     assert cap.time_source == "column 'column 1'"
     np.testing.assert_allclose(cap.channels["column 2"], V)
+    assert cap.notes == ("time column 'column 1' names no unit: read as seconds",)
 
 
 def test_no_time_column_needs_dt() -> None:
@@ -85,6 +86,7 @@ def test_sample_interval_found_in_metadata() -> None:
     cap = read_capture(text)
     np.testing.assert_allclose(cap.dt, 4e-9)
     assert cap.time_source == "metadata interval"
+    assert "taken from the file's metadata" in cap.notes[0]
 
 
 def test_dt_given_skips_a_time_column_and_a_sample_counter() -> None:
