@@ -9,6 +9,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, VerticalScroll
 from textual.widgets import DataTable, Footer, Static, TabbedContent, TabPane
+from textual.worker import get_current_worker
 from textual_plotext import PlotextPlot
 
 from kitbin.tui.markup import cells
@@ -100,7 +101,9 @@ class BinScreen(KitbinScreen):
         """Read the bin's page (in a thread)."""
         from kitbin.services import ui_support
 
-        self.post_message(BinLoaded(ui_support.bin_page(store, label)))
+        page = ui_support.bin_page(store, label)
+        if not get_current_worker().is_cancelled:  # a newer reload has started
+            self.post_message(BinLoaded(page))
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="bin-heat")
     def load_heat(self, store: Any, capture_id: int) -> None:

@@ -12,6 +12,7 @@ from textual.binding import Binding, BindingType
 from textual.containers import Horizontal, ScrollableContainer, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import DataTable, Footer, Input, Label, Static, TabbedContent, TabPane
+from textual.worker import get_current_worker
 
 from kitbin.tui.markup import cells
 from kitbin.tui.markup import plain as _escape
@@ -155,7 +156,9 @@ class PlanScreen(KitbinScreen):
         """Corners, demands, ranked bins and the pick list of a plan (in a thread)."""
         from kitbin.services import ui_support
 
-        self.post_message(PlanEvaluated(ui_support.plan_page(store, name, boards=boards, use=use)))
+        page = ui_support.plan_page(store, name, boards=boards, use=use)
+        if not get_current_worker().is_cancelled:  # a newer evaluation has started
+            self.post_message(PlanEvaluated(page))
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="plan-write")
     def export(self, sheet: Any, fmt: str, path: str) -> None:

@@ -13,6 +13,7 @@ from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
 from textual.widgets import Footer, Input, Static
+from textual.worker import get_current_worker
 
 from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import ShelfLoaded
@@ -112,7 +113,8 @@ class ShelfScreen(KitbinScreen):
         data, evidence = ui_support.shelf_rows(store)
         rows = [shape_row(d) for d in data]
         kits = inventory.list_kits(store)
-        self.post_message(ShelfLoaded(rows, kits, evidence, time.perf_counter() - start))
+        if not get_current_worker().is_cancelled:  # a newer reload has started
+            self.post_message(ShelfLoaded(rows, kits, evidence, time.perf_counter() - start))
 
     @on(ShelfLoaded)
     def _loaded(self, message: ShelfLoaded) -> None:
