@@ -142,15 +142,26 @@ def test_password_never_shown_when_server_is_closed() -> None:
         assert result.exception is None or isinstance(result.exception, SystemExit)
 
 
-def test_password_hidden_on_a_live_server(databases) -> None:
+def test_password_hidden_on_a_live_server(databases, tmp_path: Path) -> None:
     if not os.environ.get("KITBIN_TEST_PG"):
         pytest.skip("needs a PostgreSQL server: set KITBIN_TEST_PG (.ci/run starts one)")
     url = databases.new("postgresql")
     # The test server trusts 127.0.0.1, so any password is accepted, and must not show.
     with_password = url.replace("postgres@", "postgres:Hush%2Fhush99@", 1)
     assert with_password != url
-    result = kb(with_password, "bin", "show", "NOPE-1", code=4)
-    assert "Hush" not in result.stderr + result.stdout
+    seen = ""
+    for args, code in (
+        (("init",), 0),
+        (("demo", "--db", with_password, "--force"), 0),
+        (("demo", "--db", with_password, "--json"), 6),  # holds data: refused
+        (("bin", "show", "NOPE-1"), 4),
+        (("backup", str(tmp_path / "b.jsonl")), 0),
+        (("restore", str(tmp_path / "b.jsonl")), 6),  # not empty
+        (("stock", "L-01", "-100000", "--why", "x"), 5),
+    ):
+        result = kb(with_password, *args, code=code)
+        seen += result.stdout + result.stderr
+    assert "Hush" not in seen and "***" in seen
     from kitbin.store import open_store
 
     with open_store(with_password) as store:
