@@ -188,6 +188,18 @@ def test_plan_ranked_export_and_reserve(demo_db: str, tmp_path: Path) -> None:
             await _until(pilot, lambda: out.exists())
             await pilot.press("R")
             await _until(pilot, lambda: plans.page["sheet"].state == "reserved")
+            pick_id = plans.page["sheet"].pick_id
+            free_before = _stock(demo_db, "C-226")[0]
+            # take the parts: tab 5 lists the stored pick lists, T takes the highlighted one
+            await pilot.press("5")
+            picks = plans.query_one("#plan-picks")
+            await _until(pilot, lambda: picks.row_count > 0)
+            while picks.coordinate_to_cell_key(picks.cursor_coordinate).row_key.value != str(
+                pick_id
+            ):
+                await pilot.press("down")
+            await pilot.press("T")
+            await _until(pilot, lambda: _stock(demo_db, "C-226")[0] == free_before - 1)
 
     asyncio.run(scenario())
     text = out.read_text(encoding="utf-8")
@@ -195,7 +207,7 @@ def test_plan_ranked_export_and_reserve(demo_db: str, tmp_path: Path) -> None:
     with open_store(demo_db) as store:
         from kitbin.services import picking
 
-        picks = picking.list_picks(store, "reserved")
+        picks = picking.list_picks(store, "picked")
     assert len([p for p in picks if p["plan"] == "t5v"]) == 1
 
 

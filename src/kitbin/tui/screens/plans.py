@@ -28,7 +28,7 @@ from kitbin.tui.widgets.plan.text import (
     ranked_cells,
 )
 
-PLAN_TABS = ("plans", "demands", "ranked", "pick")
+PLAN_TABS = ("plans", "demands", "ranked", "pick", "stored")
 #: Actions that need a worked-out plan.
 _PLAN_ACTIONS = {"use_bin", "clear_use", "role", "boards", "export", "reserve"}
 #: The widget of each tab that takes the focus when the tab is shown.
@@ -37,6 +37,7 @@ PANE_FOCUS = {
     "demands": "#plan-corners",
     "ranked": "#plan-ranked",
     "pick": ".scroll-wide",
+    "stored": "#plan-picks",
 }
 FORMATS = ("text", "csv", "md", "html")
 EXTENSIONS = {"text": "txt", "csv": "csv", "md": "md", "html": "html"}
@@ -83,6 +84,22 @@ class PickListReserved(Message):
         self.sheet = sheet
 
 
+class PicksListed(Message):
+    """The stored pick lists were read."""
+
+    def __init__(self, picks: list[dict[str, Any]]) -> None:
+        super().__init__()
+        self.picks = picks
+
+
+class PickListSettled(Message):
+    """A reserved pick list was taken from stock or released."""
+
+    def __init__(self, result: dict[str, Any]) -> None:
+        super().__init__()
+        self.result = result
+
+
 class PlanScreen(KitbinScreen):
     """Saved plans and what the shelf can do for them."""
 
@@ -101,6 +118,9 @@ class PlanScreen(KitbinScreen):
         Binding("2", "tab('demands')", "demands", show=False),
         Binding("3", "tab('ranked')", "ranked", show=False),
         Binding("4", "tab('pick')", "pick list", show=False),
+        Binding("5", "tab('stored')", "stored pick lists", show=False),
+        Binding("T", "settle('take')", "take parts", key_display="T"),
+        Binding("C", "settle('cancel')", "release", key_display="C"),
     ]
 
     def __init__(self) -> None:
@@ -114,7 +134,7 @@ class PlanScreen(KitbinScreen):
 
     def compose(self) -> ComposeResult:
         yield Static(
-            "kitbin · plans  (keys 1-4 switch tabs, + and - change boards)", classes="title"
+            "kitbin · plans  (keys 1-5 switch tabs, + and - change boards)", classes="title"
         )
         yield Static("reading plans…", id="plan-status", classes="status")
         with TabbedContent(id="plan-tabs"):
@@ -131,6 +151,8 @@ class PlanScreen(KitbinScreen):
                     yield Static("", id="plan-reasons")
             with TabPane("4 pick list", id="pick"), ScrollableContainer(classes="scroll-wide"):
                 yield Static("", id="plan-sheet", classes="wide-text")
+            with TabPane("5 stored", id="stored"):
+                yield DataTable(id="plan-picks", cursor_type="row")
         yield Footer(compact=True)
 
     def on_mount(self) -> None:
@@ -139,7 +161,11 @@ class PlanScreen(KitbinScreen):
         self.query_one("#plan-ranked", DataTable).add_columns(
             "rank", "bin", "verdict", "score", "why"
         )
+        self.query_one("#plan-picks", DataTable).add_columns(
+            "id", "plan", "boards", "state", "created (UTC)", "lines"
+        )
         self.list_plans(self.app.store)
+        self.list_picks(self.app.store)
         self.query_one("#plan-list", DataTable).focus()
 
     # -- workers ---------------------------------------------------------------------
@@ -150,6 +176,21 @@ class PlanScreen(KitbinScreen):
         from kitbin.services import plans
 
         self.post_message(PlansListed(plans.list_plans(store)))
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="picks")
+    def list_picks(self, store: Any) -> None:
+        """Read the stored pick lists (in a thread)."""
+        from kitbin.services import picking
+
+        self.post_message(PicksListed(picking.list_picks(store)))
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="plan-write")
+    def settle(self, store: Any, pick_id: int, how: str) -> None:
+        """Take a reserved pick list's parts, or release them (in a thread)."""
+        from kitbin.services import picking
+
+        result = picking.take(store, pick_id) if how == "take" else picking.cancel(store, pick_id)
+        self.post_message(PickListSettled(result))
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="plan")
     def evaluate(self, store: Any, name: str, boards: int, use: dict[str, str]) -> None:
@@ -188,6 +229,33 @@ class PlanScreen(KitbinScreen):
         if not self.plans:
             status = "no plans yet: press n to create one"
         self.query_one("#plan-status", Static).update(status)
+
+    @on(PicksListed)
+    def _picks_listed(self, message: PicksListed) -> None:
+        from kitbin.tui.widgets.plan.text import pick_cells
+
+        table = self.query_one("#plan-picks", DataTable)
+        table.clear()
+        for p in message.picks:
+            table.add_row(*cells(pick_cells(p)), key=str(p["id"]))
+
+    def action_settle(self, how: str) -> None:
+        tabs = self.query_one(TabbedContent)
+        table = self.query_one("#plan-picks", DataTable)
+        if tabs.active != "stored" or not table.row_count:
+            self.notify("choose a reserved pick list on tab 5 first", severity="warning")
+            return
+        key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value
+        self.settle(self.app.store, int(key), how)
+
+    @on(PickListSettled)
+    def _settled(self, message: PickListSettled) -> None:
+        r = message.result
+        self.notify(f"pick list {r['id']} {r['state']}")
+        self.list_picks(self.app.store)
+        self.app.post_message(InventoryChanged(None))
+        if self.plan_name is not None:
+            self._evaluate()
 
     @on(DataTable.RowSelected, "#plan-list")
     def _plan_chosen(self, event: DataTable.RowSelected) -> None:
@@ -301,8 +369,18 @@ class PlanScreen(KitbinScreen):
     # -- keys ------------------------------------------------------------------------
 
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:
-        # keys that act on a worked-out plan stay out of the footer until there is one
-        return not (action in _PLAN_ACTIONS and self.page is None)
+        # keys that act on a worked-out plan stay out of the footer until there is one;
+        # taking and releasing apply to the stored pick lists' tab only
+        active = self.query_one(TabbedContent).active if self.is_mounted else ""
+        if action == "settle":
+            return active == "stored"
+        if action in _PLAN_ACTIONS:
+            return self.page is not None and active != "stored"
+        return True
+
+    @on(TabbedContent.TabActivated)
+    def _tab_shown(self) -> None:
+        self.refresh_bindings()
 
     def _need_plan(self) -> bool:
         if self.page is None:
@@ -379,6 +457,7 @@ class PlanScreen(KitbinScreen):
             f"`kitbin picks cancel {sheet.pick_id}`"
         )
         self.app.post_message(InventoryChanged(None))
+        self.list_picks(self.app.store)
 
     def action_new_plan(self) -> None:
         def done(plan: dict[str, Any] | None) -> None:

@@ -104,3 +104,16 @@ def divider_lines(d: Mapping[str, Any] | None) -> list[str]:
     for c in d.get("checks", ()):
         lines.append(f"  {c['status']}: {c['name']} — {c['reason']}")
     return lines
+
+
+def pick_cells(p: Mapping[str, Any]) -> tuple[str, ...]:
+    """id, plan, boards, state, created, lines of a stored pick list."""
+    lines = ", ".join(f"{ln['role']} {ln['bin']}×{ln['total']}" for ln in p.get("lines", ()))
+    return (
+        str(p["id"]),
+        p["plan"],
+        str(p["boards"]),
+        p["state"],
+        (p.get("created_at") or "").replace("T", " ")[:16],
+        lines,
+    )
