@@ -43,7 +43,7 @@ def _write_files(tmp_path: Path) -> tuple[Path, Path, float]:
     return bins, readings, total * 1e-6
 
 
-def _kitbin(db: Path, *args: str) -> subprocess.Popen:
+def _kitbin(db: Path | str, *args: str) -> subprocess.Popen:
     env = {**os.environ, "PYTHONWARNINGS": "error"}
     return subprocess.Popen(
         [sys.executable, "-m", "kitbin", "--db", str(db), *args],
@@ -124,3 +124,59 @@ def test_killed_import_is_all_or_nothing(tmp_path: Path) -> None:
         con.close()
     assert got[1] == BINS
     assert got[0] == pytest.approx(value_sum * (n // ROWS), rel=1e-9)
+
+
+@pytest.mark.slow
+def test_killed_import_on_postgresql_is_all_or_nothing(databases, tmp_path: Path) -> None:
+    if not os.environ.get("KITBIN_TEST_PG"):
+        pytest.skip("needs a PostgreSQL server: set KITBIN_TEST_PG (.ci/run starts one)")
+    from sqlalchemy import create_engine, text
+
+    bins, readings, _ = _write_files(tmp_path)
+    url = databases.new("postgresql")
+    done = _kitbin(url, "import", str(bins))
+    _out, err = done.communicate()
+    assert done.returncode == 0, err
+    engine = create_engine(url)
+
+    def count() -> int:
+        with engine.connect() as conn:
+            return conn.execute(text("SELECT count(*) FROM reading")).scalar_one()
+
+    def writing(proc: subprocess.Popen) -> None:
+        """Wait until the import's transaction has started inserting readings."""
+        query = text(
+            "SELECT count(*) FROM pg_stat_activity WHERE datname = current_database() "
+            "AND query ILIKE 'INSERT INTO reading%' AND pid <> pg_backend_pid()"
+        )
+        start = time.monotonic()
+        with engine.connect() as conn:
+            while proc.poll() is None and time.monotonic() - start < 60:
+                if conn.execute(query).scalar_one():
+                    print(f"postgresql: inserts seen {time.monotonic() - start:.2f} s in")
+                    return
+                conn.rollback()
+                time.sleep(0.005)
+
+    rng = random.Random(SEED + 1)
+    try:
+        expected = 0
+        for delay, wait_for_writes in (
+            (rng.uniform(0.5, 1.5), False),
+            (rng.uniform(0.05, 0.3), True),
+        ):
+            proc = _kitbin(url, "import", str(readings))
+            if wait_for_writes:
+                writing(proc)
+            outcome = _kill_after(proc, tmp_path / "none", delay, after_wal=False)
+            n = count()
+            where = " of writing" if wait_for_writes else ""
+            print(f"postgresql: kill after {delay:.2f} s{where}: {outcome}, readings {n}")
+            assert n in (expected, expected + ROWS)
+            expected = n
+        final = _kitbin(url, "import", str(readings))
+        _out, err = final.communicate()
+        assert final.returncode == 0, err
+        assert count() == expected + ROWS
+    finally:
+        engine.dispose()
