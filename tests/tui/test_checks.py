@@ -107,3 +107,17 @@ def test_new_bin_arguments():
     }
     args, problems = bin_arguments({"label": "", "kind": "inductor", "qty": "-3"})
     assert args is None and len(problems) == 2
+
+
+def test_help_lists_every_binding_of_every_screen():
+    from textual.binding import Binding
+
+    from kitbin.tui.screens.help import _screens, bindings_of, key_rows
+
+    screens = _screens()
+    rows = key_rows(screens, lambda b: b.key_display or b.key)
+    listed = {(screen, what) for screen, _keys, what in rows}
+    for name, cls in screens:
+        for b in bindings_of(cls):
+            assert isinstance(b, Binding)
+            assert (name, b.description or b.action) in listed
