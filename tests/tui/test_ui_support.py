@@ -58,6 +58,8 @@ def test_heat_trace_refits_the_saved_log(demo_db: str) -> None:
     assert len(trace["t_s"]) == len(trace["temp_C"]) == len(trace["fit_C"]) > 10
 
 
-def test_export_sheet_refuses_an_unknown_format(tmp_path) -> None:
+def test_write_sheet_refuses_an_unknown_format(tmp_path) -> None:
+    from kitbin.services import picking
+
     with pytest.raises(KitbinError, match="expected one of"):
-        ui_support.export_sheet(None, "pdf", str(tmp_path / "x"))
+        picking.write_sheet(None, "pdf", str(tmp_path / "x"))

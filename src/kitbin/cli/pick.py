@@ -10,27 +10,6 @@ import typer
 from kitbin.cli.common import console, err_console, print_json, state
 from kitbin.errors import KitbinError
 
-FORMATS = ("text", "csv", "md", "html")
-
-
-def _write(text: str, out: Path | None) -> None:
-    if out is None:
-        typer.echo(text, nl=False)
-        return
-    try:
-        out.write_text(text, encoding="utf-8")
-    except OSError as error:
-        raise KitbinError(f"cannot write {out}: {error.strerror}") from None
-    err_console().print(f"wrote {out}")
-
-
-def _check_writable(out: Path) -> None:
-    import os
-
-    parent = out.parent if str(out.parent) else Path(".")
-    if out.is_dir() or not parent.is_dir() or not os.access(parent, os.W_OK):
-        raise KitbinError(f"cannot write {out}: expected a file in an existing folder")
-
 
 def register(app: typer.Typer) -> None:
     """Add ``kitbin pick`` and the ``kitbin picks`` group to the root app."""
@@ -57,29 +36,28 @@ def register(app: typer.Typer) -> None:
 
         Example: kitbin pick bench-5v --boards 3 --format html --out pick.html --reserve
         """
-        from kitbin.picking import render
+        from kitbin.picking import RENDERERS, render
         from kitbin.services import picking
         from kitbin.store import open_store
         from kitbin.units import parse_quantity
 
-        if fmt not in FORMATS:
-            raise KitbinError(f"--format {fmt!r}: expected one of {', '.join(FORMATS)}")
+        if fmt not in RENDERERS:
+            raise KitbinError(f"--format {fmt!r}: expected one of {', '.join(RENDERERS)}")
         r_sense = parse_quantity(sense, "resistance")
         choices = picking.parse_use(use or [])
         if out is not None:
-            _check_writable(out)  # before anything is reserved
+            picking.check_writable(out)  # before anything is reserved
         with open_store(state(ctx).db) as store:
-            sheet, chosen, m = picking.build_sheet(
-                store, plan, boards=boards, use=choices, sense=r_sense
-            )
             if do_reserve:
-                from dataclasses import replace
-
-                pick_id = picking.reserve_sheet(store, sheet, chosen, m.plan_id)
-                lines = tuple(replace(ln, held_by_this=ln.qty_total) for ln in sheet.lines)
-                lines = tuple(replace(ln, reserved=ln.reserved + ln.qty_total) for ln in lines)
-                sheet = replace(sheet, pick_id=pick_id, state="reserved", lines=lines)
-        _write(render(sheet, fmt), out)
+                sheet = picking.reserve(store, plan, boards=boards, use=choices, sense=r_sense)
+            else:
+                sheet, _, _ = picking.build_sheet(
+                    store, plan, boards=boards, use=choices, sense=r_sense
+                )
+        if out is None:
+            typer.echo(render(sheet, fmt), nl=False)
+        else:
+            err_console().print(f"wrote {picking.write_sheet(sheet, fmt, out)}")
         if do_reserve:
             err_console().print(
                 f"pick list {sheet.pick_id} reserved; take the parts with "

@@ -14,8 +14,10 @@ neither lose a move nor take a list twice.
 from __future__ import annotations
 
 import math
+import os
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -450,6 +452,74 @@ def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan
         for ln in sorted(sheet.lines, key=lambda x: ids[x.label]):
             reserve(session, ids[ln.label], ln.qty_total)
         return int(pl.id)
+
+
+def reserve(
+    store: Store,
+    name: str,
+    *,
+    boards: int = 1,
+    use: Mapping[str, str] | None = None,
+    sense: float = 0.1,
+) -> PickSheet:
+    """Build the pick list of a plan, store it as ``reserved`` and hold its stock.
+
+    The command line (``kitbin pick --reserve``) and the terminal UI both call this.
+
+    Returns
+    -------
+    PickSheet
+        In state ``reserved`` with its ``pick_id``; each line counts its own hold.
+
+    Raises
+    ------
+    StockError
+        When a role has no bin or too few parts are free; nothing is written.
+    """
+    from dataclasses import replace
+
+    sheet, chosen, m = build_sheet(store, name, boards=boards, use=dict(use or {}), sense=sense)
+    pick_id = reserve_sheet(store, sheet, chosen, m.plan_id)
+    lines = tuple(
+        replace(ln, held_by_this=ln.qty_total, reserved=ln.reserved + ln.qty_total)
+        for ln in sheet.lines
+    )
+    return replace(sheet, pick_id=pick_id, state="reserved", lines=lines)
+
+
+def check_writable(path: str | os.PathLike[str]) -> Path:
+    """The target of ``--out`` as a Path, refused before anything is reserved.
+
+    Raises
+    ------
+    KitbinError
+        When the path is a folder or its folder does not exist or is not writable.
+    """
+    target = Path(path).expanduser()
+    parent = target.parent if str(target.parent) else Path(".")
+    if target.is_dir() or not parent.is_dir() or not os.access(parent, os.W_OK):
+        raise KitbinError(f"cannot write {target}: expected a file in an existing folder")
+    return target
+
+
+def write_sheet(sheet: PickSheet, fmt: str, path: str | os.PathLike[str]) -> Path:
+    """Write a pick sheet as ``text``, ``csv``, ``md`` or ``html`` to ``path``.
+
+    Raises
+    ------
+    KitbinError
+        For an unknown format or a file that cannot be written.
+    """
+    from kitbin.picking import RENDERERS, render
+
+    if fmt not in RENDERERS:
+        raise KitbinError(f"format {fmt!r}: expected one of {', '.join(RENDERERS)}")
+    target = check_writable(path)
+    try:
+        target.write_text(render(sheet, fmt), encoding="utf-8")
+    except OSError as error:
+        raise KitbinError(f"cannot write {target}: {error.strerror}") from None
+    return target
 
 
 def _snapshot(sheet: PickSheet) -> dict[str, Any]:

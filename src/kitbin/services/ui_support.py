@@ -254,68 +254,10 @@ def plan_page(
     }
 
 
-def reserve_pick(
-    store: Store,
-    name: str,
-    *,
-    boards: int = 1,
-    use: dict[str, str] | None = None,
-    sense: float = 0.1,
-) -> Any:
-    """Build the pick list and reserve its stock, as ``kitbin pick --reserve`` does.
-
-    Returns
-    -------
-    PickSheet
-        In state ``reserved`` with its ``pick_id``, counting its own hold as its own.
-
-    Raises
-    ------
-    StockError
-        When a role has no bin or too few parts are free; nothing is written.
-    """
-    from dataclasses import replace
-
-    from kitbin.services import picking
-
-    sheet, chosen, m = picking.build_sheet(store, name, boards=boards, use=use or {}, sense=sense)
-    pick_id = picking.reserve_sheet(store, sheet, chosen, m.plan_id)
-    lines = tuple(
-        replace(ln, held_by_this=ln.qty_total, reserved=ln.reserved + ln.qty_total)
-        for ln in sheet.lines
-    )
-    return replace(sheet, pick_id=pick_id, state="reserved", lines=lines)
-
-
-def export_sheet(sheet: Any, fmt: str, path: str) -> str:
-    """Write a pick sheet as ``text``, ``csv``, ``md`` or ``html`` to ``path``; the path.
-
-    Raises
-    ------
-    KitbinError
-        For an unknown format or a file that cannot be written.
-    """
-    from pathlib import Path
-
-    from kitbin.picking import RENDERERS, render
-
-    if fmt not in RENDERERS:
-        raise KitbinError(f"format {fmt!r}: expected one of {', '.join(RENDERERS)}")
-    target = Path(path).expanduser()
-    text = render(sheet, fmt)
-    try:
-        target.write_text(text, encoding="utf-8")
-    except OSError as e:
-        raise KitbinError(f"{target}: cannot write the pick list ({e.strerror})") from None
-    return str(target)
-
-
 __all__ = [
     "ShelfEvidence",
     "bin_page",
-    "export_sheet",
     "heat_trace",
     "plan_page",
-    "reserve_pick",
     "shelf_rows",
 ]

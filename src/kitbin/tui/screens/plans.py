@@ -204,16 +204,16 @@ class PlanScreen(KitbinScreen):
     @work(thread=True, exclusive=True, exit_on_error=False, group="plan-write")
     def export(self, sheet: Any, fmt: str, path: str) -> None:
         """Write the pick list to a file (in a thread)."""
-        from kitbin.services import ui_support
+        from kitbin.services import picking
 
-        self.post_message(PickListExported(ui_support.export_sheet(sheet, fmt, path), fmt))
+        self.post_message(PickListExported(str(picking.write_sheet(sheet, fmt, path)), fmt))
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="plan-write")
     def reserve(self, store: Any, name: str, boards: int, use: dict[str, str]) -> None:
         """Store the pick list as reserved and hold its stock (in a thread)."""
-        from kitbin.services import ui_support
+        from kitbin.services import picking
 
-        sheet = ui_support.reserve_pick(store, name, boards=boards, use=use)
+        sheet = picking.reserve(store, name, boards=boards, use=use)
         self.post_message(PickListReserved(sheet))
 
     # -- showing ---------------------------------------------------------------------
