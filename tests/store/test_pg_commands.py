@@ -192,3 +192,26 @@ def test_plan_match_pick_and_picks_commands(db_url: str) -> None:
     assert kb_json(db_url, "bin", "show", "L-A")["qty_reserved"] == 0
     late = kb(db_url, "picks", "done", "2", code=5)
     assert len(late.stderr.strip().splitlines()) == 1
+
+
+def test_terminal_ui_opens_the_shelf_on_each_backend(db_url: str) -> None:
+    # `kitbin ui` on this backend: the shelf fills with every one of the demo's bins.
+    import asyncio
+
+    from kitbin.tui.app import make_app
+
+    kb(db_url, "demo", "--db", db_url, "--force", "--json")
+    expected = len(kb_json(db_url, "bin", "list"))
+
+    async def scenario() -> None:
+        app = make_app(db_url)
+        async with app.run_test(size=(100, 30)) as pilot:
+            waited = 0.0
+            while not app.shelf.rows:
+                await pilot.pause(0.02)
+                waited += 0.02
+                assert waited < 15, "the shelf did not fill"
+            assert len(app.shelf.rows) == expected
+            await pilot.press("q")
+
+    asyncio.run(scenario())
