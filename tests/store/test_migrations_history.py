@@ -199,3 +199,40 @@ def test_every_revision_is_exercised() -> None:
     assert set(_revisions_before_head()) | {head_revision()} == {
         r.revision for r in script.walk_revisions()
     }
+
+
+def test_an_upgrade_blocked_by_another_user_changes_nothing(
+    db_url: str, backend: str, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from sqlalchemy import create_engine
+
+    from kitbin.errors import StoreError
+
+    revision = _revisions_before_head()[-1]
+    _build_at(db_url, revision)
+    monkeypatch.setattr(store_engine, "LOCK_TIMEOUT_MS", 300)
+    monkeypatch.setattr(
+        store_engine,
+        "SQLITE_PRAGMAS",
+        ("journal_mode=WAL", "busy_timeout=300", "synchronous=NORMAL"),
+    )
+    holder = create_engine(db_url)
+    try:
+        with holder.connect() as conn:
+            if backend == "sqlite":
+                conn.exec_driver_sql("BEGIN IMMEDIATE")
+            # Someone is in the middle of logging a stock move.
+            conn.execute(text("UPDATE stock_move SET reason = reason WHERE id = 1"))
+            with pytest.raises(StoreError, match="cannot create or upgrade") as refused:
+                init_database(db_url)
+            assert ("locked" if backend == "sqlite" else "lock timeout") in str(refused.value)
+            conn.rollback()
+    finally:
+        holder.dispose()
+    eng = store_engine.make_engine(db_url)
+    try:
+        with eng.connect() as conn:
+            assert store_engine.current_revision(conn) == revision
+    finally:
+        eng.dispose()
+    assert init_database(db_url) == head_revision()
