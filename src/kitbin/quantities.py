@@ -89,6 +89,33 @@ NOMINAL_QUANTITY: dict[str, str] = {
 
 PART_KINDS = ("inductor", "resistor", "capacitor", "diode", "controller", "other")
 
+#: Test-condition names of a reading (``--at freq=100kHz``) and their dimensions,
+#: including those the bench analysis writes (``drop``, ``rise_limit``).
+CONDITIONS: dict[str, str] = {
+    "freq": "frequency",
+    "temp": "temperature",
+    "ambient": "temperature",
+    "bias": "current",
+    "idc": "current",
+    "iac": "current",
+    "vbias": "voltage",
+    "vdc": "voltage",
+    "vac": "voltage",
+    "level": "voltage",
+    "duration": "time",
+    "drop": "ratio",
+    "rise_limit": "temperature_rise",
+}
+
+#: Short names people type for a condition.
+CONDITION_ALIASES: dict[str, str] = {
+    "f": "freq",
+    "t": "temp",
+    "i": "bias",
+    "v": "vbias",
+    "frequency": "freq",
+}
+
 
 def quantity_kind(name: str) -> QuantityKind:
     """Look up a quantity by name or alias (case-insensitive).

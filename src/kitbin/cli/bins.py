@@ -23,7 +23,7 @@ def _fmt(value: float | None, quantity: str | None) -> str:
 
 def _condition(name: str, value: float) -> str:
     """``freq=100 kHz``: a test condition with its unit when the name is known."""
-    from kitbin.services.inputs import CONDITIONS
+    from kitbin.quantities import CONDITIONS
     from kitbin.units import format_quantity
 
     dimension = CONDITIONS.get(name)

@@ -117,6 +117,7 @@ def register(app: typer.Typer) -> None:
         Example: kitbin match bench-5v --role inductor --top 3
         """
         from kitbin.services.matching import match_dict, match_plan
+        from kitbin.stage.spec import spec_summary
         from kitbin.store import open_store
 
         with open_store(state(ctx).db) as store:
@@ -125,25 +126,10 @@ def register(app: typer.Typer) -> None:
             print_json(match_dict(result))
             return
         con = console()
-        con.print(f"[bold]{result.plan}[/]: {_summary(result.spec)}")
+        con.print(f"[bold]{result.plan}[/]: {spec_summary(result.spec)}")
         for rm in result.roles.values():
             _print_role(con, rm)
         if result.set_network is not None:
             _print_network(con, result.set_network)
         if result.divider is not None:
             _print_divider(con, result.divider)
-
-
-def _summary(spec: Any) -> str:
-    from kitbin.units import format_quantity as q
-
-    vin = (
-        q(spec.vin_min, "voltage")
-        if spec.vin_min == spec.vin_max
-        else f"{q(spec.vin_min, 'voltage')}…{q(spec.vin_max, 'voltage')}"
-    )
-    sign = "−" if spec.topology == "invert" else ""
-    return (
-        f"{spec.topology} {vin} → {sign}{q(spec.vout, 'voltage')}, "
-        f"{q(spec.iout_max, 'current')}, {q(spec.fsw, 'frequency')}"
-    )

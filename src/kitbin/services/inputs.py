@@ -11,27 +11,18 @@ import re
 from dataclasses import dataclass
 
 from kitbin.errors import QuantityError
-from kitbin.quantities import NOMINAL_QUANTITY, PART_KINDS, QUANTITIES, quantity_kind
+from kitbin.quantities import (
+    CONDITION_ALIASES,
+    CONDITIONS,
+    NOMINAL_QUANTITY,
+    PART_KINDS,
+    QUANTITIES,
+    quantity_kind,
+)
 from kitbin.units import dimension_of, parse_quantity
 
 _ASSIGNMENT = re.compile(r"^\s*([A-Za-z][A-Za-z0-9_]*)\s*(>=|=)\s*(.*?)\s*$")
 _LABEL = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._\-/+#]{0,63}$")
-
-#: Test-condition names and their dimensions (``--at freq=100kHz``).
-CONDITIONS: dict[str, str] = {
-    "freq": "frequency",
-    "temp": "temperature",
-    "ambient": "temperature",
-    "bias": "current",
-    "idc": "current",
-    "iac": "current",
-    "vbias": "voltage",
-    "vdc": "voltage",
-    "vac": "voltage",
-    "level": "voltage",
-    "duration": "time",
-}
-CONDITION_ALIASES = {"f": "freq", "t": "temp", "i": "bias", "v": "vbias", "frequency": "freq"}
 
 
 @dataclass(frozen=True)

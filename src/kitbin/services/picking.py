@@ -38,6 +38,7 @@ from kitbin.services.matching import (
     RoleMatch,
     match_plan,
 )
+from kitbin.stage.spec import spec_summary
 from kitbin.store import matchreads
 
 if TYPE_CHECKING:
@@ -284,7 +285,7 @@ def build_sheet(
         boards=boards,
         lines=tuple(lines),
         bring_up=bring_up(m, chosen, sense),
-        summary=_summary(m.spec),
+        summary=spec_summary(m.spec),
     )
     return sheet, chosen, m
 
@@ -323,21 +324,6 @@ def _role_part(role: str) -> str:
         "set_resistor": "resistor",
         DIVIDER_ROLE: "resistors",
     }.get(role, "part")
-
-
-def _summary(spec: Spec) -> str:
-    from kitbin.units import format_quantity as q
-
-    vin = (
-        q(spec.vin_min, "voltage")
-        if spec.vin_min == spec.vin_max
-        else f"{q(spec.vin_min, 'voltage')} … {q(spec.vin_max, 'voltage')}"
-    )
-    sign = "−" if spec.topology == "invert" else ""
-    return (
-        f"{spec.topology}: {vin} → {sign}{q(spec.vout, 'voltage')} at "
-        f"{q(spec.iout_max, 'current')}, {q(spec.fsw, 'frequency')}"
-    )
 
 
 def bring_up(m: MatchResult, chosen: Sequence[Chosen], sense: float) -> BringUpSheet:
@@ -708,7 +694,7 @@ def tour_match_and_pick(store: Store) -> Any:
         sheet, _chosen, _m = build_sheet(store, DEMO_PLAN, boards=2)
     except KitbinError as error:
         return TourSection("Plan, match and pick", [f"not available: {error}"])
-    lines = [f"kitbin plan show {DEMO_PLAN}: {_summary(m.spec)}"]
+    lines = [f"kitbin plan show {DEMO_PLAN}: {spec_summary(m.spec)}"]
     lines.append(f"kitbin match {DEMO_PLAN} --role inductor --top 3:")
     ind = m.roles.get("inductor")
     if ind is not None:

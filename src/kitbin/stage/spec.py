@@ -298,6 +298,18 @@ CONTROLLER_FIELDS: dict[str, str] = {
 }
 
 
+def spec_summary(spec: Spec) -> str:
+    """One line: ``buck: 9.00 V … 13.2 V → 5.00 V at 1.00 A, 1.20 MHz``."""
+    vin = format_quantity(spec.vin_min, "voltage")
+    if spec.vin_max != spec.vin_min:
+        vin = f"{vin} … {format_quantity(spec.vin_max, 'voltage')}"
+    sign = "−" if spec.topology == "invert" else ""
+    return (
+        f"{spec.topology}: {vin} → {sign}{format_quantity(spec.vout, 'voltage')} at "
+        f"{format_quantity(spec.iout_max, 'current')}, {format_quantity(spec.fsw, 'frequency')}"
+    )
+
+
 def spec_from_dict(data: dict[str, Any]) -> Spec:
     """Build a :class:`Spec` from a dict such as :meth:`Spec.to_dict` gives.
 

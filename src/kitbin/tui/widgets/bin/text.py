@@ -6,26 +6,8 @@ import math
 from collections.abc import Mapping
 from typing import Any
 
-from kitbin.quantities import QUANTITIES
+from kitbin.quantities import CONDITIONS, QUANTITIES
 from kitbin.units import DIMENSIONS, format_quantity
-
-#: Dimensions of test-condition names (as the record command reads them), plus the
-#: names the bench service writes.
-CONDITION_DIMENSIONS: dict[str, str] = {
-    "freq": "frequency",
-    "temp": "temperature",
-    "ambient": "temperature",
-    "bias": "current",
-    "idc": "current",
-    "iac": "current",
-    "vbias": "voltage",
-    "vdc": "voltage",
-    "vac": "voltage",
-    "level": "voltage",
-    "duration": "time",
-    "drop": "ratio",
-    "rise_limit": "temperature_rise",
-}
 
 
 def value_text(quantity: str, value: float | None, bound: str = "=") -> str:
@@ -41,7 +23,7 @@ def conditions_text(conditions: Mapping[str, Any] | None) -> str:
         return ""
     parts = []
     for name, value in conditions.items():
-        dim = CONDITION_DIMENSIONS.get(name)
+        dim = CONDITIONS.get(name)
         if isinstance(value, int | float) and dim in DIMENSIONS:
             parts.append(f"{name} {format_quantity(float(value), dim)}")
         else:
