@@ -48,31 +48,34 @@ ROLES = (
 #: Relative window of the current limit a set resistor may give above its target.
 SET_WINDOW = 0.1
 
+# Sources shown beside each constraint. The books are cited by chapter; where the
+# chapter was recalled rather than checked it says "from memory".
+EM = "Erickson & Maksimović, Fundamentals of Power Electronics, 3rd ed."
+MUR = "Mohan, Undeland & Robbins, Power Electronics, 3rd ed., ch. 7 (from memory)"
 SRC_RIPPLE = (
-    "REFERENCES 1.1 and 2; Erickson & Maksimović, Fundamentals of Power Electronics, 3rd ed., "
-    "ch. 2 (from memory for the chapter); Maniktala, Switching Power Supplies A to Z, 2nd ed., "
-    "ch. 2 (r = ΔI/IL)"
+    f"{EM}, ch. 2 (from memory for the chapter); Maniktala, Switching Power Supplies A to Z, "
+    "2nd ed., ch. 2 (r = ΔI/IL)"
 )
-SRC_ISAT = "REFERENCES 2: saturation margin (" + COMMON + ")"
-SRC_IRMS = "REFERENCES 2: Irms (thermal) check (" + COMMON + ")"
+SRC_ISAT = "saturation margin (" + COMMON + ")"
+SRC_IRMS = "Irms (thermal) check (" + COMMON + ")"
 SRC_RISE = (
-    "REFERENCES 5: first-order thermal model (Incropera et al., 7th ed., ch. 5) with copper "
-    "α20 = 0.00393 /K (IEC 60028)"
+    "first-order thermal model (Incropera et al., Fundamentals of Heat and Mass Transfer, "
+    "7th ed., ch. 5) with copper α20 = 0.00393 /K (IEC 60028)"
 )
-SRC_CAP_V = "REFERENCES 6: class 2 ceramic rated ≥ 1.5–2 × working (" + COMMON + ")"
-SRC_DIODE_V = "REFERENCES 6: Schottky V_RRM ≥ 1.25–1.5 × reverse voltage (" + COMMON + ")"
+SRC_CAP_V = "class 2 ceramic rated ≥ 1.5–2 × working (" + COMMON + ")"
+SRC_DIODE_V = "Schottky V_RRM ≥ 1.25–1.5 × reverse voltage (" + COMMON + ")"
 SRC_CAP_RIPPLE = (
-    "REFERENCES 1.1: charge balance (Erickson & Maksimović ch. 2, from memory); half the "
-    "ripple budget to each of the capacitive and ESR terms, whose sum bounds the ripple"
+    f"charge balance ({EM}, ch. 2, from memory); half the ripple budget to each of the "
+    "capacitive and ESR terms, whose sum bounds the ripple"
 )
-SRC_CAP_RMS = "REFERENCES 1.1: capacitor RMS currents"
-SRC_DIODE_I = "REFERENCES 1.1: diode currents; margin " + COMMON
-SRC_LOSS = "REFERENCES 1.4: P_D = VD·ID,avg (first order)"
+SRC_CAP_RMS = f"capacitor RMS currents of the piecewise-linear waveforms ({MUR})"
+SRC_DIODE_I = f"diode currents ({MUR}); margin " + COMMON
+SRC_LOSS = f"P_D = VD·ID,avg, first-order conduction loss ({EM}, ch. 3, from memory)"
 SRC_DIVIDER = (
-    "REFERENCES 7: Vout = Vref(1 + Rtop/Rbot) + I_FB·Rtop (regulator data sheets, seen); "
+    "Vout = Vref(1 + Rtop/Rbot) + I_FB·Rtop (the form of regulator data sheets); "
     "linear worst-case budget (" + COMMON + ")"
 )
-SRC_IFB = "REFERENCES 7: R1 + R2 ≤ Vout/(100·I_FB) (one data sheet, seen)"
+SRC_IFB = "R1 + R2 ≤ Vout/(100·I_FB) (a regulator data sheet's sizing rule; " + COMMON + ")"
 SRC_SET = "controller current-limit set relation Ilim = ilim_gain / Rset; headroom " + COMMON
 SRC_CTRL = "the plan's own limits; frequency window " + COMMON
 SRC_USER = "the user's plan"

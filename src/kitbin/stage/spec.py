@@ -33,22 +33,20 @@ DEFAULT_SOURCES: dict[str, str] = {
     "vf": "0.4 V, a small Schottky diode near its rated current (" + COMMON + ")",
     "r_rect": "0 Ω: the low-side switch is ideal unless given",
     "rsw": "0 Ω: the switch is ideal unless given (a controller's rds_on fills it)",
-    "ripple_ratio": "0.3 (r = ΔI/IL); REFERENCES section 2 quotes 0.2–0.4 (" + COMMON + ")",
+    "ripple_ratio": "0.3 (r = ΔI/IL), inside the usual 0.2–0.4 (" + COMMON + ")",
     "vout_ripple_max": "1 % of vout when not given (" + COMMON + ")",
     "vin_ripple_max": "2 % of vin_min when not given (" + COMMON + ")",
     "t_ambient": "25 °C, a bench (" + COMMON + ")",
     "rise_max": "40 K, the rise most Irms ratings are quoted at (" + COMMON + ")",
     "isat_drop": "20 % inductance drop defines Isat (" + COMMON + ")",
     "isat_margin": (
-        "1.25 × Ipk: the middle of the 1.2–1.3 rule (REFERENCES section 2, "
+        "1.25 × Ipk: the middle of the usual 1.2–1.3 rule ("
         + COMMON
         + "), because a kit part's Isat comes from one or two specimens at room temperature "
         "and ferrite saturates earlier when hot"
     ),
-    "cap_voltage_margin": "1.5 × working voltage for class 2 ceramics (REFERENCES 6, "
-    + COMMON
-    + ")",
-    "vrrm_margin": "1.25 × the reverse voltage for a Schottky (REFERENCES 6, " + COMMON + ")",
+    "cap_voltage_margin": "1.5 × working voltage for class 2 ceramics (" + COMMON + ")",
+    "vrrm_margin": "1.25 × the reverse voltage for a Schottky (" + COMMON + ")",
     "diode_current_margin": (
         "1.5 × the average current: a kit diode's rating is quoted at a case temperature "
         "a breadboard does not hold (" + COMMON + ")"
@@ -56,7 +54,7 @@ DEFAULT_SOURCES: dict[str, str] = {
     "vout_tol": "3 % allowed output error (" + COMMON + ")",
     "survive_short": (
         "True: the inductor must not saturate below the current limit when the output is "
-        "overloaded or shorted (REFERENCES section 2, " + COMMON + ")"
+        "overloaded or shorted (" + COMMON + ")"
     ),
     "ilim_headroom": (
         "1.25 × Ipk for a current limit set by a resistor, so full load never trips it "
