@@ -20,6 +20,7 @@ import math
 import random
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from pathlib import Path
 from typing import Any
 
 from kitbin.errors import StoreError
@@ -390,18 +391,35 @@ def tour_bin(store: Store, label: str = "L-05") -> TourSection | None:
     return TourSection(f"One bin: kitbin bin show {label}", lines)
 
 
+def captures_folder(url: str) -> Path:
+    """Where ``kitbin demo`` puts copies of its capture files: ``demo-captures`` beside
+    a SQLite demo file, else in the user data directory."""
+    from kitbin.store.locate import sqlite_path
+
+    path = sqlite_path(url)
+    if path is not None:
+        return Path(path).parent / "demo-captures"
+    import platformdirs
+
+    return Path(platformdirs.user_data_dir("kitbin")) / "demo-captures"
+
+
 def tour_next(store: Store) -> TourSection:
-    """Tour step: commands to try next."""
+    """Tour step: commands to try next, including a capture analysis."""
     from kitbin.store.locate import sqlite_path
 
     path = sqlite_path(store.url)
     db = f"--db {path if path is not None else store.masked_url} "
+    ramp = captures_folder(store.url) / "L-05_switching_ramps.csv"
     return TourSection(
         "Try",
         [
             f"kitbin {db}bin list --kind inductor",
             f"kitbin {db}bin show L-12",
             f"kitbin {db}bin show U-01 --json",
+            f"kitbin {db}ramp {ramp} --bin L-05 --sense 0.1ohm --vl 9V --r-loop 0.25ohm",
+            f"kitbin {db}ui",
+            f"(the demo's invented capture files are in {ramp.parent})",
         ],
     )
 
@@ -447,7 +465,7 @@ def build_demo(db: str | None = None, *, force: bool = False) -> DemoResult:
     StoreError
         When ``db`` names a database that holds data and ``force`` is not given.
     """
-    from kitbin.demo import load_workshop
+    from kitbin.demo import copy_captures, load_workshop
     from kitbin.store import engine as store_engine
     from kitbin.store.locate import demo_url, mask_url, resolve_url
 
@@ -465,4 +483,5 @@ def build_demo(db: str | None = None, *, force: bool = False) -> DemoResult:
             step(store, workshop, rng)
         with store.transaction() as session:
             counts = queries.counts(session)
+        copy_captures(captures_folder(url))
         return DemoResult(store.masked_url, counts, tour(store))
