@@ -1,7 +1,5 @@
 """The root ``kitbin`` command and its error handling."""
 
-from __future__ import annotations
-
 import importlib
 import sys
 from typing import Any

@@ -1,7 +1,5 @@
 """``kitbin backup FILE`` and ``kitbin restore FILE``: whole-inventory copies."""
 
-from __future__ import annotations
-
 import typer
 
 from kitbin.cli.common import err_console, print_json, state

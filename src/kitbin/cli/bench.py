@@ -1,7 +1,5 @@
 """``kitbin ramp``, ``kitbin heat``, ``kitbin ring``: bench captures analysed and saved on bins."""
 
-from __future__ import annotations
-
 from pathlib import Path
 from typing import Annotated
 

@@ -1,7 +1,5 @@
 """``kitbin bin add|list|show|edit``: compartments of parts and what is known about them."""
 
-from __future__ import annotations
-
 import functools
 from typing import Annotated, Any
 

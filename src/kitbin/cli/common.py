@@ -1,7 +1,5 @@
 """Helpers shared by every command: the global state, JSON and table output."""
 
-from __future__ import annotations
-
 import json
 import sys
 from dataclasses import dataclass

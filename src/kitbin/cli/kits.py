@@ -1,7 +1,5 @@
 """``kitbin kit add|list``: the assortments parts came in."""
 
-from __future__ import annotations
-
 import typer
 
 from kitbin.cli.common import console, print_json, state

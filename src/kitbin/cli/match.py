@@ -1,7 +1,5 @@
 """``kitbin match PLAN``: rank the stock against what a plan demands of each role."""
 
-from __future__ import annotations
-
 import math
 from typing import Any
 

@@ -1,7 +1,5 @@
 """``kitbin pick PLAN`` and ``kitbin picks list|done|cancel``: pick lists and their stock."""
 
-from __future__ import annotations
-
 from pathlib import Path
 from typing import Annotated
 

@@ -1,7 +1,5 @@
 """``kitbin plan new|show|list|edit``: saved converter designs."""
 
-from __future__ import annotations
-
 from typing import Any
 
 import typer

@@ -1,7 +1,5 @@
 """``kitbin record LABEL QUANTITY=VALUE ...``: readings taken on a bin's parts."""
 
-from __future__ import annotations
-
 from typing import Annotated
 
 import typer

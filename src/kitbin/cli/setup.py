@@ -1,7 +1,5 @@
 """``kitbin init`` and ``kitbin demo``: create the inventory, or an invented one to explore."""
 
-from __future__ import annotations
-
 import typer
 
 from kitbin.cli.common import err_console, print_json, state

@@ -1,7 +1,5 @@
 """``kitbin stage buck|boost|invert``: the power-stage calculator (no database)."""
 
-from __future__ import annotations
-
 from typing import Any
 
 import typer

@@ -1,7 +1,5 @@
 """``kitbin stock LABEL DELTA --why TEXT``: add or take parts, with the reason logged."""
 
-from __future__ import annotations
-
 import typer
 
 from kitbin.cli.common import print_json, state

@@ -1,7 +1,5 @@
 """``kitbin import FILE`` and ``kitbin export FILE``: bins and readings as CSV."""
 
-from __future__ import annotations
-
 import typer
 
 from kitbin.cli.common import err_console, print_json, state
@@ -62,7 +60,7 @@ class _progress:
         self._bar = None
         self._task = None
 
-    def __enter__(self) -> _progress:
+    def __enter__(self) -> "_progress":
         return self
 
     def __call__(self, done: int, total: int) -> None:

@@ -1,7 +1,5 @@
 """``kitbin ui``: the terminal UI over the same database as every other command."""
 
-from __future__ import annotations
-
 import typer
 
 from kitbin.cli.common import state
