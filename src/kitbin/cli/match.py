@@ -31,7 +31,8 @@ def _check_cell(c: Any) -> str:
     from rich.markup import escape
 
     style = _STATUS_STYLE[c.status]
-    have = _fmt(c.have, c.quantity)
+    # an infinite "have" is a limit the part lets you set (a resistor-set ilim)
+    have = "settable" if c.have is not None and math.isinf(c.have) else _fmt(c.have, c.quantity)
     need = _fmt(c.required, c.quantity)
     op = "≥" if c.op == ">=" else "≤"
     grade = "" if c.grade in ("counted",) else f" {c.grade}"

@@ -99,6 +99,8 @@ def quantities_for(role: str, demand: Demand, spec: Spec | None = None) -> tuple
             out.append(c.quantity)
     if role == "inductor":
         out += ["inductance", "dcr"]
+    if role == "controller" and "ilim" in out:
+        out.append("ilim_gain")
     return tuple(dict.fromkeys(out))
 
 
@@ -141,7 +143,8 @@ class Check:
         need = _fmt(self.required, dim)
         if self.grade == "unknown" or math.isnan(self.have):
             return f"{self.name}: needs {_OPS[self.op]} {need}; no evidence → {self.status}"
-        have = _fmt(self.have, dim)
+        # An infinite "have" is a limit the part lets you set (a resistor-set ilim).
+        have = "settable" if math.isinf(self.have) else _fmt(self.have, dim)
         m = (
             ""
             if math.isnan(self.margin) or math.isinf(self.margin)
@@ -416,6 +419,14 @@ def generic_verdicts(demand: Demand, cands: Candidates, *, per_board: int = 1) -
                 cands.tables.get(c.quantity),
                 [cands.tables.get(q) for q in ISAT_FALLBACK[c.quantity]],
             )
+    gain = cands.tables.get("ilim_gain")
+    if demand.role == "controller" and gain is not None and "ilim" in [r.quantity for r in reqs]:
+        # A limit set by a resistor (ilim = ilim_gain / Rset) can be set to what the
+        # plan needs; the set_resistor role judges the resistor that sets it.
+        settable = derived_table(
+            "ilim", np.where(gain.grade != UNKNOWN, np.inf, np.nan), gain.grade
+        )
+        tables["ilim"] = with_fallback(cands.tables.get("ilim"), [settable])
     matrix = judge(reqs, {k: v for k, v in tables.items() if v is not None}, len(cands))
     return RoleVerdicts(demand.role, cands, matrix, demand_notes=demand.notes)
 

@@ -188,3 +188,22 @@ def test_generic_role_capacitor_checks() -> None:
     assert volt.required == pytest.approx(1.5 * 5.0 * 1.03) and volt.status == "fail"
     assert rows["C1"].verdict == "unverified" and rows["C2"].verdict == "fails"
     assert "i_ripple" in rows["C1"].summary
+
+
+def test_resistor_set_current_limit_passes_the_controller_ilim_check() -> None:
+    # Hand-worked: the controller demand asks ilim >= 1.25 x the full-load peak. U1 has
+    # a fixed 0.5 A limit (fails); U2 sets its limit with a resistor (ilim_gain known),
+    # so the limit can be set to what the plan needs and the check passes, the
+    # set_resistor role judging the resistor; U3 states neither (unverified).
+    spec = Spec("buck", 12.0, 12.0, 5.0, 1.0, 500e3)
+    d = demand_for(demands(spec), "controller")
+    n = 3
+    tables = {
+        "ilim": _table("ilim", n, props=[(0, 0.5)]),
+        "ilim_gain": _table("ilim_gain", n, props=[(1, 60e3)]),
+    }
+    rv = generic_verdicts(d, Candidates(("U1", "U2", "U3"), np.array([2, 2, 2]), tables))
+    status = {
+        r.label: next(c for c in r.checks if c.quantity == "ilim").status for r in rank(rv, spec)
+    }
+    assert status == {"U1": "fail", "U2": "pass", "U3": "unverified"}
