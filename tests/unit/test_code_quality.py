@@ -34,3 +34,13 @@ def test_ruff_is_clean() -> None:
         text=True,
     )
     assert result.returncode == 0, result.stdout + result.stderr
+
+
+def test_ruff_format_is_clean() -> None:
+    result = subprocess.run(
+        [_tool("ruff"), "format", "--check", "src", "tests", "benchmarks", "seed_data"],
+        cwd=ROOT,
+        capture_output=True,
+        text=True,
+    )
+    assert result.returncode == 0, result.stdout + result.stderr
