@@ -13,9 +13,11 @@ from kitbin.errors import KitbinError
 
 
 class KitbinGroup(TyperGroup):
-    """The root group: turns every :class:`KitbinError` into one line and an exit code.
+    """The root group: every error the user causes becomes one line and an exit code.
 
-    Sub-groups run inside this ``invoke``, so one place covers every command.
+    A :class:`KitbinError` from a command keeps its own exit code; a usage error
+    (an unknown option, a value of the wrong type) exits 2. Sub-groups run inside
+    this group, so one place covers every command.
     """
 
     def invoke(self, ctx: Any) -> Any:
@@ -24,6 +26,35 @@ class KitbinGroup(TyperGroup):
         except KitbinError as error:
             typer.echo(f"kitbin: error: {error}", err=True)
             ctx.exit(int(error.exit_code))
+
+    def main(self, *args: Any, standalone_mode: bool = True, **kwargs: Any) -> Any:
+        # Typer draws usage errors as a multi-line box; a bench script wants one line.
+        # typer vendors click: its exception classes live in typer._click.
+        from typer._click.exceptions import ClickException, NoArgsIsHelpError, UsageError
+
+        try:
+            result = super().main(*args, standalone_mode=False, **kwargs)
+        except NoArgsIsHelpError as error:  # a bare group: its help, as click prints it
+            if not standalone_mode:
+                raise
+            error.show()
+            sys.exit(error.exit_code)
+        except ClickException as error:
+            if not standalone_mode:
+                raise
+            message = f"kitbin: error: {error.format_message()}"
+            if isinstance(error, UsageError) and error.ctx is not None:
+                message += f" (see `{error.ctx.command_path} --help`)"
+            typer.echo(message, err=True)
+            sys.exit(error.exit_code)
+        except typer.Abort:
+            if not standalone_mode:
+                raise
+            typer.echo("kitbin: aborted", err=True)
+            sys.exit(1)
+        if not standalone_mode:
+            return result
+        sys.exit(result if isinstance(result, int) else 0)
 
 
 app = typer.Typer(
