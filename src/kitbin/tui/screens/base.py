@@ -17,47 +17,33 @@ def report_failed_worker(screen: Screen, event: Worker.StateChanged) -> bool:
     return True
 
 
-class KitbinScreen(Screen):
+class _ReportsFailures:
+    """Shared by kitbin's screens and dialogs: plain-text notifications, and worker
+    failures reported as one notification line."""
+
+    def notify(
+        self,
+        message: str,
+        *,
+        title: str = "",
+        severity: SeverityLevel = "information",
+        timeout: float | None = None,
+        markup: bool = False,
+    ) -> None:
+        """A notification; kitbin's messages are plain text (no markup) by default."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
+
+    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
+        if report_failed_worker(self, event):
+            self.worker_failed(event.worker)
+
+    def worker_failed(self, worker: Worker) -> None:
+        """Called after a failed worker was reported (override to undo a busy state)."""
+
+
+class KitbinScreen(_ReportsFailures, Screen):
     """A full screen whose workers report failures as notifications."""
 
-    def notify(
-        self,
-        message: str,
-        *,
-        title: str = "",
-        severity: SeverityLevel = "information",
-        timeout: float | None = None,
-        markup: bool = False,
-    ) -> None:
-        """A notification; kitbin's messages are plain text (no markup) by default."""
-        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
 
-    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
-        if report_failed_worker(self, event):
-            self.worker_failed(event.worker)
-
-    def worker_failed(self, worker: Worker) -> None:
-        """Called after a failed worker was reported (override to undo a busy state)."""
-
-
-class KitbinModal(ModalScreen):
+class KitbinModal(_ReportsFailures, ModalScreen):
     """A dialog whose workers report failures as notifications."""
-
-    def notify(
-        self,
-        message: str,
-        *,
-        title: str = "",
-        severity: SeverityLevel = "information",
-        timeout: float | None = None,
-        markup: bool = False,
-    ) -> None:
-        """A notification; kitbin's messages are plain text (no markup) by default."""
-        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
-
-    def on_worker_state_changed(self, event: Worker.StateChanged) -> None:
-        if report_failed_worker(self, event):
-            self.worker_failed(event.worker)
-
-    def worker_failed(self, worker: Worker) -> None:
-        """Called after a failed worker was reported (override to undo a busy state)."""
