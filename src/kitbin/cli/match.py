@@ -33,6 +33,8 @@ def _check_cell(c: Any) -> str:
     style = _STATUS_STYLE[c.status]
     # an infinite "have" is a limit the part lets you set (a resistor-set ilim)
     have = "settable" if c.have is not None and math.isinf(c.have) else _fmt(c.have, c.quantity)
+    if getattr(c, "lower_bound", False):
+        have = f"≥ {have}"  # "not reached up to": only a lower bound is known
     need = _fmt(c.required, c.quantity)
     op = "≥" if c.op == ">=" else "≤"
     grade = "" if c.grade in ("counted",) else f" {c.grade}"

@@ -136,6 +136,8 @@ class Check:
     reason: str
     source: str = ""
     evidence: str = ""
+    #: True when ``have`` is only a lower bound ("not reached up to", e.g. Isat).
+    lower_bound: bool = False
 
     def sentence(self) -> str:
         """One line: what was needed, what the bin has, and the verdict."""
@@ -145,6 +147,8 @@ class Check:
             return f"{self.name}: needs {_OPS[self.op]} {need}; no evidence → {self.status}"
         # An infinite "have" is a limit the part lets you set (a resistor-set ilim).
         have = "settable" if math.isinf(self.have) else _fmt(self.have, dim)
+        if self.lower_bound:
+            have = f"≥ {have}"
         m = (
             ""
             if math.isnan(self.margin) or math.isinf(self.margin)
@@ -217,9 +221,14 @@ class CheckMatrix:
                     reason=r.reason,
                     source=r.source,
                     evidence=ev,
+                    lower_bound=self._lower_bound(j, k),
                 )
             )
         return tuple(out)
+
+    def _lower_bound(self, j: int, k: int) -> bool:
+        t = self.tables[j] if j < len(self.tables) else None
+        return bool(t is not None and t.lower_bound_only[k])
 
     def _evidence(self, j: int, k: int) -> str:
         """One line on the evidence behind check ``j`` of candidate ``k``."""

@@ -115,6 +115,9 @@ def test_lower_bound_reading_is_unverified_not_failed() -> None:
     # B's ">= 3 A" is above its need (1.434 A at the marked low end 19.8 uH): a pass.
     b_isat = next(ch for ch in rows["B"].checks if ch.name == "isat_20 vs own peak")
     assert b_isat.status == "pass"
+    # and both say that what they have is only a lower bound
+    assert isat.lower_bound and b_isat.lower_bound
+    assert "has ≥ 3.00 A" in b_isat.sentence()
 
 
 def test_marked_inductance_uses_the_low_tolerance_end() -> None:
