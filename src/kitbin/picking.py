@@ -453,11 +453,83 @@ def render_html(sheet: PickSheet) -> str:
     return "\n".join(out) + "\n"
 
 
+def sheet_dict(sheet: PickSheet) -> dict:
+    """The pick list as plain data (SI numbers), the ``--format json`` of ``kitbin pick``.
+
+    Keys: ``plan``, ``topology``, ``boards``, ``state``, ``pick_id``, ``summary``,
+    ``complete``, ``lines`` (each ``role``, ``bin``, ``part``, ``per_board``, ``total``,
+    ``on_hand``, ``available``, ``shortfall``, ``kit``, ``location``, ``recognise``,
+    ``verdict``, ``note``), ``bring_up`` (``vout_V``, ``vout_band_V``, ``corners`` with
+    ``vin_V``, ``duty``, ``ripple_App``, ``ripple_mVpp_across_sense``, ``i_peak_A``,
+    ``ccm_min_load_A``; ``sense_ohm``, ``temp_rise_K``, ``sat_margin``, ``notes``) or
+    null, and ``cautions``.
+    """
+    b = sheet.bring_up
+    bring_up = None
+    if b is not None:
+        bring_up = {
+            "vout_V": b.vout_nominal,
+            "vout_band_V": [b.vout_low, b.vout_high],
+            "corners": [
+                {
+                    "vin_V": c.vin,
+                    "duty": c.duty,
+                    "ripple_App": c.ripple_pp,
+                    "ripple_mVpp_across_sense": b.ripple_mv(c),
+                    "i_peak_A": c.i_peak,
+                    "ccm_min_load_A": c.ccm_min_load,
+                }
+                for c in b.corners
+            ],
+            "sense_ohm": b.sense_resistance,
+            "temp_rise_K": b.temp_rise,
+            "sat_margin": b.sat_margin,
+            "notes": list(b.notes),
+        }
+    return {
+        "plan": sheet.plan,
+        "topology": sheet.topology,
+        "boards": sheet.boards,
+        "state": sheet.state,
+        "pick_id": sheet.pick_id,
+        "summary": sheet.summary,
+        "complete": sheet.complete,
+        "lines": [
+            {
+                "role": ln.role,
+                "bin": ln.label,
+                "part": ln.description,
+                "per_board": ln.qty_per_board,
+                "total": ln.qty_total,
+                "on_hand": ln.on_hand,
+                "available": ln.available,
+                "shortfall": ln.shortfall,
+                "kit": ln.kit,
+                "location": ln.location,
+                "recognise": ln.recognise,
+                "verdict": ln.verdict,
+                "note": ln.note,
+            }
+            for ln in sheet.lines
+        ],
+        "bring_up": bring_up,
+        "cautions": list(b.cautions if b is not None else SAFETY_CAUTIONS),
+    }
+
+
+def render_json(sheet: PickSheet) -> str:
+    """The pick list as indented JSON (see :func:`sheet_dict`)."""
+    import json
+
+    return json.dumps(sheet_dict(sheet), indent=2, ensure_ascii=False) + "\n"
+
+
 RENDERERS = {
     "text": render_text,
     "csv": render_csv,
     "md": render_markdown,
     "html": render_html,
+    "json": render_json,
 }
 
 

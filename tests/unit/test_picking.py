@@ -218,3 +218,17 @@ def test_csv_never_emits_a_formula_and_html_never_emits_a_tag(cells: list[str]) 
     p.feed(render_html(sheet))
     assert set(p.tags) <= {"html", "head", "meta", "title", "style", "body", "h1", "p",
                            "table", "thead", "tbody", "tr", "th", "td", "em"}  # fmt: skip
+
+
+def test_json_render_carries_every_line_and_the_bring_up_numbers() -> None:
+    import json
+
+    data = json.loads(render(_sheet(3), "json"))
+    assert [ln["bin"] for ln in data["lines"]] == ["L-07", "R-31", None]
+    assert [ln["shortfall"] for ln in data["lines"]] == [0, 1, 3]
+    assert data["complete"] is False and data["state"] == "draft"
+    corner = data["bring_up"]["corners"][0]
+    # 0.5833 A p-p across 0.1 ohm = 58.33 mV p-p (Ohm's law)
+    assert corner["ripple_mVpp_across_sense"] == pytest.approx(58.33)
+    assert data["bring_up"]["vout_band_V"] == [4.852, 5.119]
+    assert any("local" in c for c in data["cautions"])

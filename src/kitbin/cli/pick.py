@@ -21,7 +21,7 @@ def register(app: typer.Typer) -> None:
             list[str] | None,
             typer.Option("--use", help="Override a role's bin: ROLE=LABEL (repeatable)."),
         ] = None,
-        fmt: str = typer.Option("text", "--format", help="text, csv, md or html."),
+        fmt: str = typer.Option("text", "--format", help="text, csv, md, html or json."),
         out: Annotated[Path | None, typer.Option("--out", help="Write to this file.")] = None,
         sense: str = typer.Option(
             "0.1ohm", "--sense", help="Sense resistor the ripple is shown across."
@@ -29,6 +29,7 @@ def register(app: typer.Typer) -> None:
         do_reserve: bool = typer.Option(
             False, "--reserve", help="Store the pick list and hold its stock."
         ),
+        as_json: bool = typer.Option(False, "--json", help="Same as --format json."),
     ) -> None:
         """Print a pick list with its bring-up sheet; optionally reserve the parts.
 
@@ -39,6 +40,8 @@ def register(app: typer.Typer) -> None:
         from kitbin.store import open_store
         from kitbin.units import parse_quantity
 
+        if as_json:
+            fmt = "json"
         if fmt not in RENDERERS:
             raise KitbinError(f"--format {fmt!r}: expected one of {', '.join(RENDERERS)}")
         r_sense = parse_quantity(sense, "resistance")
