@@ -98,6 +98,7 @@ COMMAND_MODULES = (
     "setup",
     "kits",
     "bins",
+    "marking",
     "stock",
     "record",
     "bench",
