@@ -2,9 +2,18 @@
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pytest
+from hypothesis import settings
+
+# Property tests are deterministic and have no per-example deadline (a busy 2-core CI
+# machine must not turn a slow example into a failure). KITBIN_HYPOTHESIS_RANDOM=1
+# explores with fresh random examples instead.
+settings.register_profile("kitbin", derandomize=True, deadline=None, print_blob=True)
+settings.register_profile("explore", deadline=None, print_blob=True)
+settings.load_profile("explore" if os.environ.get("KITBIN_HYPOTHESIS_RANDOM") == "1" else "kitbin")
 
 
 @pytest.fixture(autouse=True)
