@@ -30,6 +30,7 @@ from kitbin.picking import (
     PickSheet,
     describe_part,
     recognise,
+    sheet_dict,
 )
 from kitbin.services.matching import (
     DIVIDER_ROLE,
@@ -420,7 +421,7 @@ def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan
     ids = {c.label: c.bin_id for c in chosen if c.label}
     with store.transaction() as session:
         pl = PickList(
-            plan_id=plan_id, boards=sheet.boards, state="reserved", snapshot=_snapshot(sheet)
+            plan_id=plan_id, boards=sheet.boards, state="reserved", snapshot=sheet_dict(sheet)
         )
         session.add(pl)
         session.flush()
@@ -506,28 +507,6 @@ def write_sheet(sheet: PickSheet, fmt: str, path: str | os.PathLike[str]) -> Pat
     except OSError as error:
         raise KitbinError(f"cannot write {target}: {error.strerror}") from None
     return target
-
-
-def _snapshot(sheet: PickSheet) -> dict[str, Any]:
-    from kitbin.picking import bring_up_rows
-
-    return {
-        "plan": sheet.plan,
-        "summary": sheet.summary,
-        "lines": [
-            {
-                "role": ln.role,
-                "bin": ln.label,
-                "part": ln.description,
-                "per_board": ln.qty_per_board,
-                "total": ln.qty_total,
-                "verdict": ln.verdict,
-                "note": ln.note,
-            }
-            for ln in sheet.lines
-        ],
-        "bring_up": [list(r) for r in bring_up_rows(sheet.bring_up)] if sheet.bring_up else [],
-    }
 
 
 def _load_reserved(session: Any, pick_id: int, verb: str) -> Any:
