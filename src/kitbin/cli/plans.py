@@ -1,5 +1,8 @@
 """``kitbin plan new|show|list|edit``: saved converter designs."""
 
+import functools
+import inspect
+from collections.abc import Callable
 from typing import Any
 
 import typer
@@ -36,16 +39,36 @@ _SPEC_HELP = {
 }
 
 
-def _opt(name: str) -> Any:
-    return typer.Option(None, name, help=_SPEC_HELP[name])
+def _param_name(option: str) -> str:
+    return option[2:].replace("-", "_")
 
 
-def _texts(values: dict[str, Any]) -> dict[str, str | None]:
-    """Option name -> text, from a command's locals (parameter names as in _SPEC_HELP)."""
-    out: dict[str, str | None] = {}
-    for option in _SPEC_HELP:
-        out[option] = values.get(option[2:].replace("-", "_"))
-    return out
+def _spec_options(command: Callable[..., None]) -> Callable[..., None]:
+    """Give a command one ``--OPTION TEXT`` per spec field of :data:`_SPEC_HELP`.
+
+    Typer reads options from a function's signature, so the spec options are added
+    to the signature here once instead of being written out in every command; the
+    command receives them as ``spec``, a dict of option name -> text (None if not given).
+    """
+    own = [p for p in inspect.signature(command).parameters.values() if p.name != "spec"]
+    added = [
+        inspect.Parameter(
+            _param_name(option),
+            inspect.Parameter.KEYWORD_ONLY,
+            default=typer.Option(None, option, help=help_text),
+            annotation=str | None,
+        )
+        for option, help_text in _SPEC_HELP.items()
+    ]
+
+    @functools.wraps(command)
+    def with_spec(**kwargs: Any) -> None:
+        spec = {option: kwargs.pop(_param_name(option)) for option in _SPEC_HELP}
+        command(spec=spec, **kwargs)
+
+    with_spec.__signature__ = inspect.Signature([*own, *added])  # type: ignore[attr-defined]
+    with_spec.__annotations__ = {p.name: p.annotation for p in [*own, *added]}
+    return with_spec
 
 
 def register(app: typer.Typer) -> None:
@@ -53,6 +76,7 @@ def register(app: typer.Typer) -> None:
     plan_app = typer.Typer(help="Plans: saved converter designs.", no_args_is_help=True)
 
     @plan_app.command("new")
+    @_spec_options
     def new(
         ctx: typer.Context,
         name: str = typer.Argument(..., help="Name of the plan."),
@@ -61,33 +85,8 @@ def register(app: typer.Typer) -> None:
             None, "--controller", help="Controller bin whose properties fill the spec."
         ),
         notes: str | None = typer.Option(None, "--notes", help="Free text."),
-        topology: str | None = _opt("--topology"),
-        vin: str | None = _opt("--vin"),
-        vout: str | None = _opt("--vout"),
-        iout: str | None = _opt("--iout"),
-        iout_min: str | None = _opt("--iout-min"),
-        fsw: str | None = _opt("--fsw"),
-        vf: str | None = _opt("--vf"),
-        rsw: str | None = _opt("--rsw"),
-        sync: str | None = _opt("--sync"),
-        rectifier: str | None = _opt("--rectifier"),
-        ripple: str | None = _opt("--ripple"),
-        vout_ripple: str | None = _opt("--vout-ripple"),
-        vin_ripple: str | None = _opt("--vin-ripple"),
-        ambient: str | None = _opt("--ambient"),
-        rise_max: str | None = _opt("--rise-max"),
-        isat_drop: str | None = _opt("--isat-drop"),
-        isat_margin: str | None = _opt("--isat-margin"),
-        vout_tol: str | None = _opt("--vout-tol"),
-        ilim: str | None = _opt("--ilim"),
-        ton_min: str | None = _opt("--ton-min"),
-        d_max: str | None = _opt("--d-max"),
-        vref: str | None = _opt("--vref"),
-        vref_tol: str | None = _opt("--vref-tol"),
-        ifb: str | None = _opt("--ifb"),
-        ilim_gain: str | None = _opt("--ilim-gain"),
-        ilim_target: str | None = _opt("--ilim-target"),
         as_json: bool = typer.Option(False, "--json", help="Print the stored plan as JSON."),
+        spec: dict[str, str | None] | None = None,
     ) -> None:
         """Save a plan: a TOML file (--from), then a controller's properties, then options.
 
@@ -97,7 +96,7 @@ def register(app: typer.Typer) -> None:
         from kitbin.services import plans
         from kitbin.store import open_store
 
-        updates = plans.parse_spec_texts(_texts(locals()))
+        updates = plans.parse_spec_texts(spec or {})
         with open_store(state(ctx).db) as store:
             plan = plans.new_plan(
                 store, name, updates, from_file=from_file, controller=controller, notes=notes
@@ -108,6 +107,7 @@ def register(app: typer.Typer) -> None:
             typer.echo(f"saved plan {plan['name']} ({plan['topology']})")
 
     @plan_app.command("edit")
+    @_spec_options
     def edit(
         ctx: typer.Context,
         name: str = typer.Argument(..., help="Name of the plan."),
@@ -115,33 +115,8 @@ def register(app: typer.Typer) -> None:
             None, "--controller", help="Controller bin whose properties fill the spec."
         ),
         notes: str | None = typer.Option(None, "--notes", help="Free text."),
-        topology: str | None = _opt("--topology"),
-        vin: str | None = _opt("--vin"),
-        vout: str | None = _opt("--vout"),
-        iout: str | None = _opt("--iout"),
-        iout_min: str | None = _opt("--iout-min"),
-        fsw: str | None = _opt("--fsw"),
-        vf: str | None = _opt("--vf"),
-        rsw: str | None = _opt("--rsw"),
-        sync: str | None = _opt("--sync"),
-        rectifier: str | None = _opt("--rectifier"),
-        ripple: str | None = _opt("--ripple"),
-        vout_ripple: str | None = _opt("--vout-ripple"),
-        vin_ripple: str | None = _opt("--vin-ripple"),
-        ambient: str | None = _opt("--ambient"),
-        rise_max: str | None = _opt("--rise-max"),
-        isat_drop: str | None = _opt("--isat-drop"),
-        isat_margin: str | None = _opt("--isat-margin"),
-        vout_tol: str | None = _opt("--vout-tol"),
-        ilim: str | None = _opt("--ilim"),
-        ton_min: str | None = _opt("--ton-min"),
-        d_max: str | None = _opt("--d-max"),
-        vref: str | None = _opt("--vref"),
-        vref_tol: str | None = _opt("--vref-tol"),
-        ifb: str | None = _opt("--ifb"),
-        ilim_gain: str | None = _opt("--ilim-gain"),
-        ilim_target: str | None = _opt("--ilim-target"),
         as_json: bool = typer.Option(False, "--json", help="Print the stored plan as JSON."),
+        spec: dict[str, str | None] | None = None,
     ) -> None:
         """Change a saved plan; options given win, a new --controller fills the rest.
 
@@ -150,7 +125,7 @@ def register(app: typer.Typer) -> None:
         from kitbin.services import plans
         from kitbin.store import open_store
 
-        updates = plans.parse_spec_texts(_texts(locals()))
+        updates = plans.parse_spec_texts(spec or {})
         with open_store(state(ctx).db) as store:
             plan = plans.edit_plan(store, name, updates, controller=controller, notes=notes)
         if as_json:
