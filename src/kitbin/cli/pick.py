@@ -1,4 +1,5 @@
-"""``kitbin pick PLAN`` and ``kitbin picks list|done|cancel``: pick lists and their stock."""
+"""``kitbin pick PLAN`` and ``kitbin picks list|reserve|done|cancel``: pick lists and their
+stock."""
 
 from pathlib import Path
 from typing import Annotated
@@ -29,9 +30,15 @@ def register(app: typer.Typer) -> None:
         do_reserve: bool = typer.Option(
             False, "--reserve", help="Store the pick list and hold its stock."
         ),
+        do_save: bool = typer.Option(
+            False,
+            "--save",
+            help="Store the pick list as a draft, holding no stock (reserve it later).",
+        ),
         as_json: bool = typer.Option(False, "--json", help="Same as --format json."),
     ) -> None:
-        """Print a pick list with its bring-up sheet; optionally reserve the parts.
+        """Print a pick list with its bring-up sheet; optionally save it as a draft or
+        reserve the parts.
 
         Example: kitbin pick bench-5v --boards 3 --format html --out pick.html --reserve
         """
@@ -40,6 +47,12 @@ def register(app: typer.Typer) -> None:
         from kitbin.store import open_store
         from kitbin.units import parse_quantity
 
+        if do_save and do_reserve:
+            raise typer.BadParameter(
+                "use --save (store a draft) or --reserve (hold the stock now), not both",
+                ctx=ctx,
+                param_hint="'--save'",
+            )
         if as_json:
             fmt = "json"
         if fmt not in RENDERERS:
@@ -51,6 +64,8 @@ def register(app: typer.Typer) -> None:
         with open_store(state(ctx).db) as store:
             if do_reserve:
                 sheet = picking.reserve(store, plan, boards=boards, use=choices, sense=r_sense)
+            elif do_save:
+                sheet = picking.save_draft(store, plan, boards=boards, use=choices, sense=r_sense)
             else:
                 sheet, _, _ = picking.build_sheet(
                     store, plan, boards=boards, use=choices, sense=r_sense
@@ -59,19 +74,31 @@ def register(app: typer.Typer) -> None:
             typer.echo(render(sheet, fmt), nl=False)
         else:
             err_console().print(f"wrote {picking.write_sheet(sheet, fmt, out)}")
+        # one plain line on stderr each (not wrapped to a terminal's width)
         if do_reserve:
-            err_console().print(
+            typer.echo(
                 f"pick list {sheet.pick_id} reserved; take the parts with "
                 f"`kitbin picks done {sheet.pick_id}` or release them with "
-                f"`kitbin picks cancel {sheet.pick_id}`"
+                f"`kitbin picks cancel {sheet.pick_id}`",
+                err=True,
+            )
+        elif do_save:
+            typer.echo(
+                f"pick list {sheet.pick_id} saved as a draft, no stock held; "
+                f"reserve it with `kitbin picks reserve {sheet.pick_id}`",
+                err=True,
             )
 
-    picks_app = typer.Typer(help="Stored pick lists: list, take, release.", no_args_is_help=True)
+    picks_app = typer.Typer(
+        help="Stored pick lists: list, reserve a draft, take, release.", no_args_is_help=True
+    )
 
     @picks_app.command("list")
     def picks_list(
         ctx: typer.Context,
-        only: str | None = typer.Option(None, "--state", help="reserved, picked or cancelled."),
+        only: str | None = typer.Option(
+            None, "--state", help="draft, reserved, picked or cancelled."
+        ),
         as_json: bool = typer.Option(False, "--json", help="Print JSON."),
     ) -> None:
         """List stored pick lists, newest first.
@@ -93,7 +120,7 @@ def register(app: typer.Typer) -> None:
         for col in ("id", "plan", "boards", "state", "created", "lines"):
             table.add_column(col)
         for r in rows:
-            lines = ", ".join(f"{ln['role']} {ln['bin']}×{ln['total']}" for ln in r["lines"])
+            lines = ", ".join(f"{ln['role']} {ln['bin'] or '—'}×{ln['total']}" for ln in r["lines"])
             table.add_row(
                 str(r["id"]),
                 escape(r["plan"]),
@@ -103,6 +130,32 @@ def register(app: typer.Typer) -> None:
                 escape(lines),
             )
         console().print(table)
+
+    @picks_app.command("reserve")
+    def picks_reserve(
+        ctx: typer.Context,
+        pick_id: int = typer.Argument(..., help="Draft pick list id (see `kitbin picks list`)."),
+        as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+    ) -> None:
+        """Hold a draft pick list's stock (state becomes reserved); the quantities saved
+        with the draft are reserved, and refused unless every bin has them free.
+
+        Example: kitbin picks reserve 3
+        """
+        from kitbin.services import picking
+        from kitbin.store import open_store
+
+        with open_store(state(ctx).db) as store:
+            result = picking.reserve_draft(store, pick_id)
+        if as_json:
+            print_json(result)
+            return
+        for h in result["held"]:
+            typer.echo(
+                f"{h['bin']}: reserved {h['reserved']}, {h['available']} free "
+                f"({h['on_hand']} on hand, {h['qty_reserved']} reserved)"
+            )
+        typer.echo(f"pick list {pick_id} reserved")
 
     @picks_app.command("done")
     def picks_done(
@@ -132,7 +185,8 @@ def register(app: typer.Typer) -> None:
         pick_id: int = typer.Argument(..., help="Pick list id (see `kitbin picks list`)."),
         as_json: bool = typer.Option(False, "--json", help="Print JSON."),
     ) -> None:
-        """Release a reserved pick list's parts (state becomes cancelled).
+        """Cancel a draft pick list, or release a reserved one's parts (state becomes
+        cancelled).
 
         Example: kitbin picks cancel 3
         """
@@ -146,6 +200,7 @@ def register(app: typer.Typer) -> None:
             return
         for r in result["released"]:
             typer.echo(f"{r['bin']}: released {r['released']}")
-        typer.echo(f"pick list {pick_id} cancelled")
+        was = " (a draft: no stock was held)" if result["was"] == "draft" else ""
+        typer.echo(f"pick list {pick_id} cancelled{was}")
 
     app.add_typer(picks_app, name="picks")

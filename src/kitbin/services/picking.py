@@ -1,14 +1,22 @@
-"""Pick lists: choose a bin per role, reserve the stock, take it or give it back.
+"""Pick lists: choose a bin per role, save a draft, reserve the stock, take it or give
+it back.
 
 ``kitbin pick PLAN`` builds a :class:`kitbin.picking.PickSheet` from the matcher
 (the top verified bin per role unless ``--use ROLE=LABEL`` says otherwise) and a
-bring-up sheet from the power stage with the chosen parts. With ``--reserve`` the
-pick list is stored in state ``reserved`` and each bin's ``qty_reserved`` goes up,
-all in one transaction. ``kitbin picks done ID`` takes the parts (state ``picked``,
-one logged stock move per line carrying the pick list id) and ``kitbin picks cancel
-ID`` releases them (state ``cancelled``), each in one transaction through the
-store's conditional-update stock functions, so two benches picking at once can
-neither lose a move nor take a list twice.
+bring-up sheet from the power stage with the chosen parts. The states of a stored
+pick list: ``draft`` → ``reserved`` → ``picked``, and ``draft`` or ``reserved`` →
+``cancelled``.
+
+With ``--save`` the pick list is stored as a ``draft``: its lines and quantities,
+no stock held (shortfalls and empty roles allowed). ``kitbin picks reserve ID``
+holds a draft's stock; with ``--reserve`` the list is stored in state ``reserved``
+at once. Either way each bin's ``qty_reserved`` goes up in the same transaction as
+the state. ``kitbin picks done ID`` takes the parts (state ``picked``, one logged
+stock move per line carrying the pick list id) and ``kitbin picks cancel ID``
+releases them, or just cancels a draft (state ``cancelled``). Each change is one
+transaction: a conditional UPDATE of the state and the store's conditional-update
+stock functions, so two benches at once can neither lose a move nor reserve or take
+a list twice.
 """
 
 from __future__ import annotations
@@ -396,6 +404,54 @@ def bring_up(m: MatchResult, chosen: Sequence[Chosen], sense: float) -> BringUpS
 # -- storing, taking, releasing --------------------------------------------------------
 
 
+def _bin_ids(chosen: Sequence[Chosen]) -> dict[str, int]:
+    """Chosen bin id by label (also by lower-case label: ``--use`` is case-insensitive)."""
+    ids: dict[str, int] = {}
+    for c in chosen:
+        if c.label and c.bin_id is not None:
+            ids.setdefault(c.label, c.bin_id)
+            ids.setdefault(c.label.lower(), c.bin_id)
+    return ids
+
+
+def _line_bin(ids: Mapping[str, int], label: str | None) -> int | None:
+    if not label:
+        return None
+    return ids.get(label, ids.get(label.lower()))
+
+
+def _store_sheet(
+    session: Any, sheet: PickSheet, ids: Mapping[str, int], plan_id: int, state: str
+) -> int:
+    """Add a pick list in ``state`` with one pick line per sheet line; return its id.
+
+    A line without a bin (a role nothing in stock fits) is stored with ``bin_id``
+    NULL. The sheet as ``kitbin pick --json`` shows it, with this id and state, is
+    frozen in the list's ``snapshot``.
+    """
+    from dataclasses import replace
+
+    from kitbin.store.models import PickLine as PickLineRow
+    from kitbin.store.models import PickList
+
+    pl = PickList(plan_id=plan_id, boards=sheet.boards, state=state)
+    session.add(pl)
+    session.flush()
+    pl.snapshot = sheet_dict(replace(sheet, pick_id=int(pl.id), state=state))
+    for ln in sheet.lines:
+        session.add(
+            PickLineRow(
+                pick_list_id=pl.id,
+                role=ln.role,
+                bin_id=_line_bin(ids, ln.label),
+                qty_per_board=ln.qty_per_board,
+                qty_total=ln.qty_total,
+            )
+        )
+    session.flush()
+    return int(pl.id)
+
+
 def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan_id: int) -> int:
     """Store a pick list in state ``reserved`` and hold its stock (one transaction).
 
@@ -404,8 +460,6 @@ def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan
     StockError
         When a role has no bin or a bin has too few free parts; nothing is written.
     """
-    from kitbin.store.models import PickLine as PickLineRow
-    from kitbin.store.models import PickList
     from kitbin.store.stock import reserve
 
     missing = [ln for ln in sheet.lines if not ln.label]
@@ -418,27 +472,13 @@ def reserve_sheet(store: Store, sheet: PickSheet, chosen: Sequence[Chosen], plan
     if short:
         what = ", ".join(f"{ln.label} short by {ln.shortfall}" for ln in short)
         raise StockError(f"cannot reserve: {what}")
-    ids = {c.label: c.bin_id for c in chosen if c.label}
+    ids = _bin_ids(chosen)
     with store.transaction() as session:
-        pl = PickList(
-            plan_id=plan_id, boards=sheet.boards, state="reserved", snapshot=sheet_dict(sheet)
-        )
-        session.add(pl)
-        session.flush()
-        for ln in sheet.lines:
-            session.add(
-                PickLineRow(
-                    pick_list_id=pl.id,
-                    role=ln.role,
-                    bin_id=ids[ln.label],
-                    qty_per_board=ln.qty_per_board,
-                    qty_total=ln.qty_total,
-                )
-            )
+        pick_id = _store_sheet(session, sheet, ids, plan_id, "reserved")
         # bins in id order, as every transaction touching several bins must (no deadlock)
-        for ln in sorted(sheet.lines, key=lambda x: ids[x.label]):
-            reserve(session, ids[ln.label], ln.qty_total)
-        return int(pl.id)
+        for ln in sorted(sheet.lines, key=lambda x: _line_bin(ids, x.label) or 0):
+            reserve(session, _line_bin(ids, ln.label), ln.qty_total)
+        return pick_id
 
 
 def reserve(
@@ -447,7 +487,7 @@ def reserve(
     *,
     boards: int = 1,
     use: Mapping[str, str] | None = None,
-    sense: float = 0.1,
+    sense: float = DEFAULT_SENSE,
 ) -> PickSheet:
     """Build the pick list of a plan, store it as ``reserved`` and hold its stock.
 
@@ -472,6 +512,110 @@ def reserve(
         for ln in sheet.lines
     )
     return replace(sheet, pick_id=pick_id, state="reserved", lines=lines)
+
+
+def save_draft(
+    store: Store,
+    plan: str,
+    *,
+    boards: int = 1,
+    use: Mapping[str, str] | None = None,
+    sense: float = DEFAULT_SENSE,
+) -> PickSheet:
+    """Build the pick list of a plan as :func:`build_sheet` does and store it as a
+    ``draft`` (one transaction). No stock is held.
+
+    A draft may have shortfalls, and roles with no bin chosen (stored with no bin);
+    both are refused later, when the draft is reserved with :func:`reserve_draft`.
+    The command line (``kitbin pick --save``) and the terminal UI both call this.
+
+    Returns
+    -------
+    PickSheet
+        In state ``draft`` with its ``pick_id``.
+
+    Raises
+    ------
+    NotFoundError, KitbinError
+        As :func:`build_sheet`; nothing is written.
+    """
+    from dataclasses import replace
+
+    sheet, chosen, m = build_sheet(store, plan, boards=boards, use=dict(use or {}), sense=sense)
+    with store.transaction() as session:
+        pick_id = _store_sheet(session, sheet, _bin_ids(chosen), m.plan_id, "draft")
+    return replace(sheet, pick_id=pick_id, state="draft")
+
+
+def reserve_draft(store: Store, pick_id: int) -> dict[str, Any]:
+    """Reserve a draft pick list: state ``reserved`` and its stock held, in one
+    transaction.
+
+    The quantities stored with the draft are reserved as they are (what was saved is
+    what gets held; the chosen bins are not re-ranked); whether they are free is
+    checked now. The state changes by one conditional UPDATE from ``draft``, then
+    each bin's total over the list's lines is held, bins in id order.
+
+    Returns
+    -------
+    dict
+        ``id``, ``state`` (``reserved``), ``plan``, ``boards`` and ``held``: per bin
+        ``bin``, ``reserved`` (held by this list), ``on_hand``, ``qty_reserved`` (all
+        lists) and ``available`` (on hand − reserved).
+
+    Raises
+    ------
+    NotFoundError
+        No such pick list.
+    StockError
+        The list is not a draft (reserved already, perhaps by another bench a moment
+        ago), a line has no bin, or a bin has too few free parts. Nothing is changed:
+        the list stays a draft and no stock is held.
+    """
+    from kitbin.store.stock import reserve as hold
+
+    with store.transaction() as session:
+        pl = _load(session, pick_id)
+        if pl.state != "draft":
+            raise StockError(f"pick list {pick_id} is {pl.state}, not draft; cannot reserve it")
+        empty = [ln.role for ln in pl.lines if ln.bin_id is None]
+        if empty:
+            raise StockError(
+                f"cannot reserve pick list {pick_id}: nothing chosen for {', '.join(empty)}",
+                f"save a new draft with --use ROLE=LABEL and cancel this one "
+                f"with `kitbin picks cancel {pick_id}`",
+            )
+        if not matchreads.set_pick_state(session, pick_id, "draft", "reserved"):
+            raise StockError(f"pick list {pick_id} was changed by someone else; not reserved")
+        need: dict[int, int] = {}
+        for ln in pl.lines:
+            need[int(ln.bin_id)] = need.get(int(ln.bin_id), 0) + ln.qty_total
+        held = []
+        # bins in id order, as every transaction touching several bins must (no deadlock)
+        for bin_id in sorted(need):
+            try:
+                res = hold(session, bin_id, need[bin_id])
+            except StockError as error:  # rolls the whole transaction back
+                raise StockError(
+                    f"cannot reserve pick list {pick_id}: {error.msg}",
+                    "it stays a draft; nothing was held",
+                ) from None
+            held.append(
+                {
+                    "bin": res.label,
+                    "reserved": need[bin_id],
+                    "on_hand": res.qty,
+                    "qty_reserved": res.qty_reserved,
+                    "available": res.qty - res.qty_reserved,
+                }
+            )
+        return {
+            "id": pick_id,
+            "state": "reserved",
+            "plan": pl.plan.name,
+            "boards": pl.boards,
+            "held": held,
+        }
 
 
 def check_writable(path: str | os.PathLike[str]) -> Path:
@@ -509,12 +653,10 @@ def write_sheet(sheet: PickSheet, fmt: str, path: str | os.PathLike[str]) -> Pat
     return target
 
 
-def _load_reserved(session: Any, pick_id: int, verb: str) -> Any:
+def _load(session: Any, pick_id: int) -> Any:
     pl = matchreads.pick_list(session, pick_id)
     if pl is None:
         raise NotFoundError(f"no pick list {pick_id}", "see `kitbin picks list`")
-    if pl.state != "reserved":
-        raise StockError(f"pick list {pick_id} is {pl.state}, not reserved; cannot {verb} it")
     return pl
 
 
@@ -522,18 +664,28 @@ def take(store: Store, pick_id: int) -> dict[str, Any]:
     """Take a reserved pick list's parts out of stock: state ``picked``, one stock move
     per line (with the pick list id), all in one transaction.
 
+    A draft is refused: it holds no stock, so it is reserved first
+    (:func:`reserve_draft`, which checks that its parts are free).
+
     Raises
     ------
     NotFoundError
         No such pick list.
     StockError
-        The list is not reserved (already picked or cancelled, perhaps by another
-        bench a moment ago); nothing is changed.
+        The list is a draft, or not reserved (already picked or cancelled, perhaps by
+        another bench a moment ago); nothing is changed.
     """
     from kitbin.store.stock import consume_reserved
 
     with store.transaction() as session:
-        pl = _load_reserved(session, pick_id, "pick")
+        pl = _load(session, pick_id)
+        if pl.state == "draft":
+            raise StockError(
+                f"pick list {pick_id} is a draft and holds no stock; cannot pick it",
+                f"reserve it first with `kitbin picks reserve {pick_id}`",
+            )
+        if pl.state != "reserved":
+            raise StockError(f"pick list {pick_id} is {pl.state}, not reserved; cannot pick it")
         if not matchreads.set_pick_state(session, pick_id, "reserved", "picked"):
             raise StockError(f"pick list {pick_id} was changed by someone else; not picked")
         moves = []
@@ -553,28 +705,40 @@ def take(store: Store, pick_id: int) -> dict[str, Any]:
 
 
 def cancel(store: Store, pick_id: int) -> dict[str, Any]:
-    """Release a reserved pick list's parts: state ``cancelled`` (one transaction).
+    """Cancel a draft or reserved pick list: state ``cancelled`` (one transaction).
+
+    A reserved list's parts are released; a draft held none, so no stock changes.
+    The result's ``was`` is the state the list had (``draft`` or ``reserved``).
 
     Raises
     ------
-    NotFoundError, StockError
-        As :func:`take`.
+    NotFoundError
+        No such pick list.
+    StockError
+        The list is already picked or cancelled (perhaps by another bench a moment
+        ago); nothing is changed.
     """
     from kitbin.store.stock import release
 
     with store.transaction() as session:
-        pl = _load_reserved(session, pick_id, "cancel")
-        if not matchreads.set_pick_state(session, pick_id, "reserved", "cancelled"):
+        pl = _load(session, pick_id)
+        was = pl.state
+        if was not in ("draft", "reserved"):
+            raise StockError(
+                f"pick list {pick_id} is {was}, not draft or reserved; cannot cancel it"
+            )
+        if not matchreads.set_pick_state(session, pick_id, was, "cancelled"):
             raise StockError(f"pick list {pick_id} was changed by someone else; not cancelled")
         released = []
-        for ln in sorted(pl.lines, key=lambda x: (x.bin_id or 0, x.id)):
-            if ln.bin_id is None:
-                continue
-            res = release(session, ln.bin_id, ln.qty_total)
-            released.append(
-                {"bin": res.label, "released": ln.qty_total, "qty_reserved": res.qty_reserved}
-            )
-        return {"id": pick_id, "state": "cancelled", "released": released}
+        if was == "reserved":
+            for ln in sorted(pl.lines, key=lambda x: (x.bin_id or 0, x.id)):
+                if ln.bin_id is None:
+                    continue
+                res = release(session, ln.bin_id, ln.qty_total)
+                released.append(
+                    {"bin": res.label, "released": ln.qty_total, "qty_reserved": res.qty_reserved}
+                )
+        return {"id": pick_id, "state": "cancelled", "was": was, "released": released}
 
 
 def list_picks(store: Store, state: str | None = None) -> list[dict[str, Any]]:
@@ -618,7 +782,10 @@ __all__ = [
     "cancel",
     "list_picks",
     "parse_use",
+    "reserve",
+    "reserve_draft",
     "reserve_sheet",
+    "save_draft",
     "take",
 ]
 
