@@ -1,6 +1,6 @@
 """Plans: pick or create one; its corners and demands; ranked bins per role with the
-reasons for every verdict; overrides; the pick list with its bring-up sheet; export
-and reserve."""
+reasons for every verdict; overrides; the pick list with its bring-up sheet; export,
+save as a draft and reserve."""
 
 from __future__ import annotations
 
@@ -30,7 +30,7 @@ from kitbin.tui.widgets.plan.text import (
 
 PLAN_TABS = ("plans", "demands", "ranked", "pick", "stored")
 #: Actions that need a worked-out plan.
-_PLAN_ACTIONS = {"use_bin", "clear_use", "role", "boards", "export", "reserve"}
+_PLAN_ACTIONS = {"use_bin", "clear_use", "role", "boards", "export", "reserve", "save_draft"}
 #: The widget of each tab that takes the focus when the tab is shown.
 PANE_FOCUS = {
     "plans": "#plan-list",
@@ -84,6 +84,14 @@ class PickListReserved(Message):
         self.sheet = sheet
 
 
+class PickListSaved(Message):
+    """The pick list was stored as a draft (no stock held)."""
+
+    def __init__(self, sheet: Any) -> None:
+        super().__init__()
+        self.sheet = sheet
+
+
 class PicksListed(Message):
     """The stored pick lists were read."""
 
@@ -93,7 +101,7 @@ class PicksListed(Message):
 
 
 class PickListSettled(Message):
-    """A reserved pick list was taken from stock or released."""
+    """A stored pick list was reserved (a draft), taken from stock or released."""
 
     def __init__(self, result: dict[str, Any]) -> None:
         super().__init__()
@@ -113,6 +121,7 @@ class PlanScreen(KitbinScreen):
         Binding("plus", "boards(1)", "boards+", key_display="+", show=False),
         Binding("minus", "boards(-1)", "boards−", key_display="-", show=False),
         Binding("e", "export", "export"),
+        Binding("S", "save_draft", "save draft", key_display="S"),
         Binding("R", "reserve", "reserve", key_display="R"),
         Binding("1", "tab('plans')", "plans", show=False),
         Binding("2", "tab('demands')", "demands", show=False),
@@ -186,11 +195,12 @@ class PlanScreen(KitbinScreen):
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="plan-write")
     def settle(self, store: Any, pick_id: int, how: str) -> None:
-        """Take a reserved pick list's parts, or release them (in a thread)."""
+        """Reserve a draft pick list, take a reserved one's parts, or cancel either
+        (in a thread)."""
         from kitbin.services import picking
 
-        result = picking.take(store, pick_id) if how == "take" else picking.cancel(store, pick_id)
-        self.post_message(PickListSettled(result))
+        act = {"take": picking.take, "cancel": picking.cancel, "reserve": picking.reserve_draft}
+        self.post_message(PickListSettled(act[how](store, pick_id)))
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="plan")
     def evaluate(self, store: Any, name: str, boards: int, use: dict[str, str]) -> None:
@@ -215,6 +225,13 @@ class PlanScreen(KitbinScreen):
 
         sheet = picking.reserve(store, name, boards=boards, use=use)
         self.post_message(PickListReserved(sheet))
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="plan-write")
+    def save_draft(self, store: Any, name: str, boards: int, use: dict[str, str]) -> None:
+        """Store the pick list as a draft, holding no stock (in a thread)."""
+        from kitbin.services import picking
+
+        self.post_message(PickListSaved(picking.save_draft(store, name, boards=boards, use=use)))
 
     # -- showing ---------------------------------------------------------------------
 
@@ -243,7 +260,7 @@ class PlanScreen(KitbinScreen):
         tabs = self.query_one(TabbedContent)
         table = self.query_one("#plan-picks", DataTable)
         if tabs.active != "stored" or not table.row_count:
-            self.notify("choose a reserved pick list on tab 5 first", severity="warning")
+            self.notify("choose a stored pick list on tab 5 first", severity="warning")
             return
         key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value
         self.settle(self.app.store, int(key), how)
@@ -374,6 +391,8 @@ class PlanScreen(KitbinScreen):
         active = self.query_one(TabbedContent).active if self.is_mounted else ""
         if action == "settle":
             return active == "stored"
+        if action == "reserve" and active == "stored":
+            return True  # R on tab 5 reserves the highlighted draft
         if action in _PLAN_ACTIONS:
             return self.page is not None and active != "stored"
         return True
@@ -442,8 +461,26 @@ class PlanScreen(KitbinScreen):
         self.notify(f"pick list written ({message.fmt}): {message.path}")
 
     def action_reserve(self) -> None:
-        if self._need_plan():
+        if self.query_one(TabbedContent).active == "stored":
+            self.action_settle("reserve")
+        elif self._need_plan():
             self.reserve(self.app.store, self.plan_name, self.boards, dict(self.use))
+
+    def action_save_draft(self) -> None:
+        if self._need_plan():
+            self.save_draft(self.app.store, self.plan_name, self.boards, dict(self.use))
+
+    @on(PickListSaved)
+    def _saved(self, message: PickListSaved) -> None:
+        sheet = message.sheet
+        self.page["sheet"] = sheet
+        self._show_sheet(sheet)
+        self.action_tab("pick")
+        self.notify(
+            f"pick list {sheet.pick_id} saved as a draft, no stock held; reserve it with R "
+            f"on tab 5 or `kitbin picks reserve {sheet.pick_id}`"
+        )
+        self.list_picks(self.app.store)
 
     @on(PickListReserved)
     def _reserved(self, message: PickListReserved) -> None:

@@ -108,7 +108,7 @@ def divider_lines(d: Mapping[str, Any] | None) -> list[str]:
 
 def pick_cells(p: Mapping[str, Any]) -> tuple[str, ...]:
     """id, plan, boards, state, created, lines of a stored pick list."""
-    lines = ", ".join(f"{ln['role']} {ln['bin']}×{ln['total']}" for ln in p.get("lines", ()))
+    lines = ", ".join(f"{ln['role']} {ln['bin'] or '—'}×{ln['total']}" for ln in p.get("lines", ()))
     return (
         str(p["id"]),
         p["plan"],
