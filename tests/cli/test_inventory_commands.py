@@ -69,8 +69,10 @@ def test_marked_evidence_without_readings(db: Path) -> None:
 
 
 def test_init_creates_and_reports_revision(db: Path) -> None:
+    from kitbin.store import head_revision
+
     r = kb(db, "init")
-    assert r.exit_code == 0 and "revision 0002" in r.stdout
+    assert r.exit_code == 0 and f"revision {head_revision()}" in r.stdout
     assert db.exists()
 
 

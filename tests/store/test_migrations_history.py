@@ -221,8 +221,10 @@ def test_an_upgrade_blocked_by_another_user_changes_nothing(
         with holder.connect() as conn:
             if backend == "sqlite":
                 conn.exec_driver_sql("BEGIN IMMEDIATE")
-            # Someone is in the middle of logging a stock move.
+            # Someone is in the middle of logging a stock move and a reading (between
+            # them, tables that every revision so far alters or indexes).
             conn.execute(text("UPDATE stock_move SET reason = reason WHERE id = 1"))
+            conn.execute(text("UPDATE reading SET note = note WHERE id = 1"))
             with pytest.raises(StoreError, match="cannot create or upgrade") as refused:
                 init_database(db_url)
             assert ("locked" if backend == "sqlite" else "lock timeout") in str(refused.value)

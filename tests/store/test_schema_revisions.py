@@ -28,7 +28,7 @@ def _upgrade_to(url: str, revision: str) -> None:
 
 
 def test_head_is_the_newest_revision() -> None:
-    assert head_revision() == "0002"
+    assert head_revision() == "0003"
     # The quick text scan used on every command agrees with Alembic's own view.
     assert store_engine._revisions() == {
         rev.revision: rev.down_revision for rev in store_engine._script().walk_revisions()
@@ -73,7 +73,7 @@ def test_upgrade_from_0001_keeps_rows_and_adds_pick_tables(db_url: str) -> None:
         eng.dispose()
     with pytest.raises(StoreError, match="kitbin init"):
         open_store(db_url)
-    assert init_database(db_url) == "0002"
+    assert init_database(db_url) == "0003"
     store = open_store(db_url)
     try:
         with store.transaction() as s:
@@ -81,6 +81,36 @@ def test_upgrade_from_0001_keeps_rows_and_adds_pick_tables(db_url: str) -> None:
             assert b is not None and b.qty == 4
     finally:
         store.close()
+
+
+def test_upgrade_from_0002_keeps_readings_and_swaps_the_index(db_url: str) -> None:
+    from sqlalchemy import inspect
+
+    _upgrade_to(db_url, "0002")
+    eng = store_engine.make_engine(db_url)
+    try:
+        with eng.begin() as conn:
+            conn.exec_driver_sql(
+                "INSERT INTO bin (id, label, kind, qty, qty_reserved, created_at, updated_at) "
+                "VALUES (1, 'L-01', 'inductor', 4, 0, '2026-01-01 00:00:00', "
+                "'2026-01-01 00:00:00')"
+            )
+            conn.exec_driver_sql(
+                "INSERT INTO reading (bin_id, quantity, value, bound, conditions, taken_at) "
+                "VALUES (1, 'inductance', 1.0e-5, '=', '{}', '2026-01-01 00:00:00')"
+            )
+    finally:
+        eng.dispose()
+    assert init_database(db_url) == "0003"
+    eng = store_engine.make_engine(db_url)
+    try:
+        with eng.connect() as conn:
+            names = {ix["name"] for ix in inspect(conn).get_indexes("reading")}
+            value = conn.exec_driver_sql("SELECT value FROM reading").scalar()
+    finally:
+        eng.dispose()
+    assert "ix_reading_evidence" in names and "ix_reading_bin_id_quantity" not in names
+    assert value == pytest.approx(1.0e-5)
 
 
 def test_downgrade_to_base_and_back(db_url: str) -> None:
@@ -91,13 +121,13 @@ def test_downgrade_to_base_and_back(db_url: str) -> None:
             command.downgrade(store_engine._alembic_config(conn), "base")
     finally:
         eng.dispose()
-    assert init_database(db_url) == "0002"
+    assert init_database(db_url) == "0003"
 
 
 def test_init_twice_is_harmless(tmp_path: Path) -> None:
     path = tmp_path / "inv.sqlite"
-    assert init_database(str(path)) == "0002"
-    assert init_database(str(path)) == "0002"
+    assert init_database(str(path)) == "0003"
+    assert init_database(str(path)) == "0003"
 
 
 def test_new_sqlite_file_is_private_to_its_owner(tmp_path: Path) -> None:

@@ -195,7 +195,8 @@ class Reading(Base):
     __tablename__ = "reading"
     __table_args__ = (
         CheckConstraint(_in_list("bound", READING_BOUNDS), name="bound"),
-        Index("ix_reading_bin_id_quantity", "bin_id", "quantity"),
+        # covers the matcher's read of every reading of some quantities (revision 0003)
+        Index("ix_reading_evidence", "bin_id", "quantity", "bound", "value"),
     )
 
     id: Mapped[int] = mapped_column(Integer, primary_key=True)
