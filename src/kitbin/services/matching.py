@@ -9,6 +9,7 @@ evidence tables, and judged for every candidate at once
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
@@ -44,62 +45,121 @@ if TYPE_CHECKING:
 DIVIDER_ROLE = "feedback_divider"
 
 
+@dataclass(frozen=True)
+class RawEvidence:
+    """What a :class:`Stock`'s evidence tables are built from (SI values).
+
+    Per reading and per property: the bin's row in the stock, the index of its
+    quantity in ``quantities`` (``names`` for properties, which adds the ``<q>_tol``
+    names), the value, and the lower-bound flag or the grade code of the source.
+    Per bin: the nominal, its tolerances, and which quantity the nominal describes.
+    """
+
+    quantities: tuple[str, ...]
+    names: tuple[str, ...]
+    reading_row: np.ndarray
+    reading_quantity: np.ndarray
+    reading_value: np.ndarray
+    reading_bound: np.ndarray
+    prop_row: np.ndarray
+    prop_name: np.ndarray
+    prop_value: np.ndarray
+    prop_grade: np.ndarray
+    nominal: np.ndarray
+    tol_minus: np.ndarray
+    tol_plus: np.ndarray
+    nominal_quantity: np.ndarray
+
+    def tables(self, rows: np.ndarray, quantities: Iterable[str]) -> dict[str, EvidenceTable]:
+        """Evidence tables of ``quantities`` for the bins at ``rows`` (ascending), row
+        ``k`` of each table being bin ``rows[k]``."""
+        n_all = self.nominal.size
+        where = np.full(n_all, -1, dtype=np.int64)
+        where[rows] = np.arange(rows.size)
+        r_at = where[self.reading_row]
+        r_in = r_at >= 0
+        p_at = where[self.prop_row]
+        p_in = p_at >= 0
+        nom, tm, tp = self.nominal[rows], self.tol_minus[rows], self.tol_plus[rows]
+        nominal_q = self.nominal_quantity[rows]
+        out: dict[str, EvidenceTable] = {}
+        for q in quantities:
+            if q not in self.quantities:
+                continue
+            qi = self.quantities.index(q)
+            rm = r_in & (self.reading_quantity == qi)
+            pm = p_in & (self.prop_name == qi)
+            prop_tol = np.zeros(int(pm.sum()))
+            tol_name = f"{q}_tol"
+            if tol_name in self.names and pm.any():
+                tmask = p_in & (self.prop_name == self.names.index(tol_name))
+                if tmask.any():
+                    tol_by_row = np.zeros(rows.size)
+                    tol_by_row[p_at[tmask]] = self.prop_value[tmask]
+                    prop_tol = tol_by_row[p_at[pm]]
+            has_nominal = nominal_q == q
+            out[q] = evidence_table(
+                q,
+                rows.size,
+                reading_row=r_at[rm],
+                reading_value=self.reading_value[rm],
+                reading_bound=self.reading_bound[rm],
+                nominal=np.where(has_nominal, nom, np.nan) if has_nominal.any() else None,
+                tol_minus=tm,
+                tol_plus=tp,
+                prop_row=p_at[pm],
+                prop_value=self.prop_value[pm],
+                prop_grade=self.prop_grade[pm],
+                prop_tol=prop_tol,
+            )
+        return out
+
+
 @dataclass
 class Stock:
-    """The bins of some kinds with their evidence tables (rows in id order)."""
+    """The bins of some kinds (rows in id order) and their evidence.
+
+    Evidence tables are built for the rows a role asks for (:meth:`subset`), so a
+    quantity that only one kind has is not tabulated for every other bin.
+    """
 
     ids: np.ndarray
     labels: np.ndarray
     kinds: np.ndarray
     nominal: np.ndarray
     available: np.ndarray
-    tables: dict[str, EvidenceTable]
+    raw: RawEvidence
     curves: dict[int, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+
+    @functools.cached_property
+    def tables(self) -> dict[str, EvidenceTable]:
+        """Evidence tables of every loaded quantity over every row."""
+        return self.raw.tables(np.arange(self.ids.size), self.raw.quantities)
 
     def subset(
         self, kinds: Sequence[str], quantities: Iterable[str] | None = None
     ) -> tuple[np.ndarray, Candidates]:
         """Rows of the given kinds, as :class:`Candidates` (and their row indices), with
-        the tables of ``quantities`` only (all when None)."""
+        the tables of ``quantities`` only (all loaded quantities when None)."""
         rows = np.flatnonzero(np.isin(self.kinds, list(kinds)))
-        wanted = (
-            self.tables
-            if quantities is None
-            else {q: self.tables[q] for q in quantities if q in self.tables}
-        )
+        tables = self.raw.tables(rows, self.raw.quantities if quantities is None else quantities)
         if rows.size == self.ids.size:
-            return rows, Candidates(self.labels, self.available, wanted, self.curves)
-        tables = {q: _take(t, rows) for q, t in wanted.items()}
+            return rows, Candidates(self.labels, self.available, tables, self.curves)
         where = np.searchsorted(rows, np.fromiter(self.curves, dtype=np.int64))
         curves = {
             int(w): c
             for w, (r, c) in zip(where, self.curves.items(), strict=True)
             if w < rows.size and rows[w] == r
         }
-        labels = np.asarray(self.labels, dtype=object)[rows]
-        return rows, Candidates(labels, self.available[rows], tables, curves)
+        return rows, Candidates(self.labels[rows], self.available[rows], tables, curves)
 
 
-def _take(t: EvidenceTable, rows: np.ndarray) -> EvidenceTable:
-    from dataclasses import replace
-
-    return replace(
-        t,
-        grade=t.grade[rows],
-        low=t.low[rows],
-        high=t.high[rows],
-        closed_low=t.closed_low[rows],
-        closed_high=t.closed_high[rows],
-        max_low=t.max_low[rows],
-        mean=t.mean[rows],
-        spread=t.spread[rows],
-        n=t.n[rows],
-        lower_bound_only=t.lower_bound_only[rows],
-    )
+_EMPTY_READINGS = np.empty(0, dtype=bulk.READING_FIELDS)
+_EMPTY_PROPERTIES = np.empty(0, dtype=bulk.PROPERTY_FIELDS)
 
 
 def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]) -> Stock:
-    """Bins of ``kinds`` with evidence tables for ``quantities`` (three or four queries).
+    """Bins of ``kinds`` with the evidence of ``quantities`` (three or four queries).
 
     Readings give ``measured``; the bin's nominal and tolerance give ``marked`` for
     the quantity its marking describes (inductance, resistance, capacitance);
@@ -108,66 +168,46 @@ def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]
     """
     kinds = tuple(dict.fromkeys(kinds))
     quantities = tuple(q for q in dict.fromkeys(quantities) if q in QUANTITIES)
-    bins, labels = bulk.candidate_bins(session, kinds)
-    n = bins.shape[0]
-    ids_a = bins[:, 0].astype(np.int64)
-    kind_a = np.asarray(kinds, dtype=object)[bins[:, 1].astype(np.int64)] if n else np.empty(0)
-    nom, tm, tp = bins[:, 2], bins[:, 3], bins[:, 4]
-    avail = (bins[:, 5] - bins[:, 6]).astype(np.int64)
+    bins = bulk.candidate_bins(session, kinds)
+    n = bins.size
+    ids_a = bins["id"]
+    kind_a = np.asarray(kinds, dtype=object)[bins["kind"]] if n else np.empty(0, dtype=object)
 
-    reads = bulk.reading_rows(session, quantities) if n and quantities else np.empty((0, 4))
-    r_row, r_keep = _rows_of(ids_a, reads[:, 0])
+    reads = bulk.reading_rows(session, quantities) if n and quantities else _EMPTY_READINGS
+    r_row, r_keep = _rows_of(ids_a, reads["bin_id"])
     reads = reads[r_keep]
-    r_q, r_val, r_bnd = reads[:, 1].astype(np.int64), reads[:, 2], reads[:, 3] > 0
 
     names = quantities + tuple(f"{q}_tol" for q in quantities if f"{q}_tol" in QUANTITIES)
-    props, sources = bulk.property_rows(session, names) if n else (np.empty((0, 3)), [])
-    p_row, p_keep = _rows_of(ids_a, props[:, 0])
+    props = bulk.property_rows(session, names) if n else _EMPTY_PROPERTIES
+    p_row, p_keep = _rows_of(ids_a, props["bin_id"])
     props = props[p_keep]
-    p_name, p_val = props[:, 1].astype(np.int64), props[:, 2]
-    codes = {src: GRADES.index(grade_of_source(src)) for src in set(sources)}
-    p_grade = (
-        np.array([codes[src] for src in sources], dtype=np.int8)[p_keep]
-        if sources
-        else np.empty(0, dtype=np.int8)
-    )
+    codes = {src: GRADES.index(grade_of_source(src)) for src in set(props["source"])}
+    p_grade = np.fromiter((codes[src] for src in props["source"]), np.int8, count=props.size)
 
     nominal_q = np.array([NOMINAL_QUANTITY.get(k, "") for k in kinds], dtype=object)
-    row_nominal_q = nominal_q[bins[:, 1].astype(np.int64)] if n else np.empty(0, dtype=object)
-    tables: dict[str, EvidenceTable] = {}
-    for qi, q in enumerate(quantities):
-        rm = r_q == qi
-        pm = p_name == qi
-        prop_tol = np.zeros(int(pm.sum()))
-        tol_name = f"{q}_tol"
-        if tol_name in names and pm.any():
-            tmask = p_name == names.index(tol_name)
-            if tmask.any():
-                tol_by_row = np.zeros(n)
-                tol_by_row[p_row[tmask]] = p_val[tmask]
-                prop_tol = tol_by_row[p_row[pm]]
-        has_nominal = row_nominal_q == q
-        tables[q] = evidence_table(
-            q,
-            n,
-            reading_row=r_row[rm],
-            reading_value=r_val[rm],
-            reading_bound=r_bnd[rm],
-            nominal=np.where(has_nominal, nom, np.nan) if has_nominal.any() else None,
-            tol_minus=tm,
-            tol_plus=tp,
-            prop_row=p_row[pm],
-            prop_value=p_val[pm],
-            prop_grade=p_grade[pm],
-            prop_tol=prop_tol,
-        )
+    raw = RawEvidence(
+        quantities=quantities,
+        names=names,
+        reading_row=r_row,
+        reading_quantity=reads["quantity"],
+        reading_value=reads["value"],
+        reading_bound=reads["lower_bound"],
+        prop_row=p_row,
+        prop_name=props["name"],
+        prop_value=props["value"],
+        prop_grade=p_grade,
+        nominal=bins["nominal"],
+        tol_minus=bins["tol_minus"],
+        tol_plus=bins["tol_plus"],
+        nominal_quantity=nominal_q[bins["kind"]] if n else np.empty(0, dtype=object),
+    )
     curves: dict[int, tuple[np.ndarray, np.ndarray]] = {}
     if "inductor" in kinds and n:
         for bin_id, curve in bulk.curve_rows(session, ["inductor"]):
             parsed = _curve(curve)
             if parsed is not None:
                 curves[int(np.searchsorted(ids_a, bin_id))] = parsed
-    return Stock(ids_a, np.asarray(labels, dtype=object), kind_a, nom, avail, tables, curves)
+    return Stock(ids_a, bins["label"], kind_a, bins["nominal"], bins["available"], raw, curves)
 
 
 def _rows_of(ids: np.ndarray, bin_ids: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
