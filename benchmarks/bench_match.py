@@ -5,7 +5,8 @@ Target (issue): 100,000 bins with 300,000 readings, ``kitbin match PLAN`` within
 in a temporary SQLite file with Core bulk inserts (about 10 s), then the CLI runs
 in a subprocess, as a user would run it. Printed side by side: ``kitbin --help``
 (the start-up floor), ``match --role inductor``, ``match --json`` (every role) and
-the in-process split of loading and judging.
+the in-process split of loading and judging. Each CLI figure is the median of five
+runs; the fastest and slowest run of ``match`` are printed too.
 
     python benchmarks/bench_match.py
 """
@@ -138,7 +139,10 @@ def build(path: Path, seed: int = 2026) -> dict[str, int]:
     return {"bins": len(bins), "readings": len(readings), "properties": len(props)}
 
 
-def _wall(args: list[str], env: dict[str, str], repeat: int = 5) -> tuple[float, str]:
+def _wall(
+    args: list[str], env: dict[str, str], repeat: int = 5, spread: list[float] | None = None
+) -> tuple[float, str]:
+    """Median wall time of ``repeat`` runs (and the output); ``spread`` gets min and max."""
     times, out = [], ""
     for _ in range(repeat):
         t = time.perf_counter()
@@ -147,6 +151,8 @@ def _wall(args: list[str], env: dict[str, str], repeat: int = 5) -> tuple[float,
         if proc.returncode != 0:
             raise RuntimeError(f"{' '.join(args)} failed: {proc.stderr.strip()}")
         out = proc.stdout
+    if spread is not None:
+        spread[:] = [round(min(times), 3), round(max(times), 3)]
     return statistics.median(times), out
 
 
@@ -160,7 +166,8 @@ def run() -> dict:
         env = {**os.environ, "COLUMNS": "160"}
         base = [sys.executable, "-m", "kitbin", "--db", str(path)]
         help_s, _ = _wall([sys.executable, "-m", "kitbin", "--help"], env)
-        match_s, _ = _wall([*base, "match", PLAN], env)
+        match_spread: list[float] = []
+        match_s, _ = _wall([*base, "match", PLAN], env, spread=match_spread)
         json_s, out = _wall([*base, "match", PLAN, "--json"], env)
         role_s, _ = _wall([*base, "match", PLAN, "--role", "inductor"], env)
         data = json.loads(out)
@@ -189,6 +196,7 @@ def run() -> dict:
         "build_s": round(build_s, 1),
         "cli_help_s": round(help_s, 3),
         "cli_match_all_roles_s": round(match_s, 3),
+        "cli_match_all_roles_min_max_s": match_spread,
         "cli_match_json_s": round(json_s, 3),
         "cli_match_inductor_only_s": round(role_s, 3),
         "in_process_match_s": round(inproc_s, 3),
