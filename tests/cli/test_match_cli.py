@@ -97,3 +97,31 @@ def test_bad_input_is_one_line(db: Path, args: list[str], code: int, words: str)
 def test_top_must_be_positive(db: Path) -> None:
     r = kb(db, "match", "bench-5v", "--top", "0")
     assert r.exit_code == 2
+
+
+def test_shown_evidence_lines_say_what_bin_show_says(tmp_path: Path) -> None:
+    # The matcher builds evidence for 100,000 bins as arrays and counts specimens
+    # only for the rows it shows; each line it shows must still be the scalar
+    # evidence of that bin (kitbin.match.evidence.build_evidence, via `bin show`),
+    # "4 readings on 3 specimens" included.
+    from typer.testing import CliRunner
+
+    from kitbin.cli.app import app
+
+    path = tmp_path / "demo.sqlite"
+    assert CliRunner().invoke(app, ["demo", "--db", str(path)]).exit_code == 0
+    r = kb(path, "match", "demo-5v", "--top", "3", "--json")
+    assert r.exit_code == 0, r.output
+    compared = with_specimens = 0
+    for rows in json.loads(r.stdout)["roles"].values():
+        for row in rows:
+            shown = kb(path, "bin", "show", row["bin"], "--json")
+            evidence = json.loads(shown.stdout)["evidence"]
+            for c in row["checks"]:
+                ev = evidence.get(c["quantity"])
+                if c["grade"] != "measured" or not ev or not c["evidence"].startswith("measured"):
+                    continue
+                assert c["evidence"] == ev["text"].split(": ", 1)[1], (row["bin"], c["name"])
+                compared += 1
+                with_specimens += "specimen" in c["evidence"]
+    assert compared >= 10 and with_specimens >= 5

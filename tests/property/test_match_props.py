@@ -28,7 +28,7 @@ from kitbin.match.evidence import (
 from kitbin.match.evidence_table import STATUSES, evidence_table
 
 _value = st.floats(0.1, 10.0, allow_nan=False)
-_reading = st.tuples(_value, st.booleans())
+_reading = st.tuples(_value, st.booleans(), st.one_of(st.none(), st.integers(1, 3)))
 _prop = st.tuples(
     _value, st.sampled_from(["measured", "listing", "assumed"]), st.sampled_from([0.0, 0.01, 0.1])
 )
@@ -47,13 +47,14 @@ _bin = st.fixed_dictionaries(
     assumed=st.one_of(st.none(), _value),
     req=_value,
     quantity=st.sampled_from(["isat_20", "dcr", "inductance"]),
+    shown=st.sets(st.integers(0, 5)),
 )
-def test_table_rows_equal_scalar_evidence(bins, assumed, req, quantity) -> None:
+def test_table_rows_equal_scalar_evidence(bins, assumed, req, quantity, shown) -> None:
     rr, rv, rb, pr, pv, pg, pt = [], [], [], [], [], [], []
     nom = np.full(len(bins), np.nan)
     tol = np.full(len(bins), np.nan)
     for k, b in enumerate(bins):
-        for v, is_bound in b["readings"]:
+        for v, is_bound, _ in b["readings"]:
             rr.append(k), rv.append(v), rb.append(is_bound)
         if b["nominal"] is not None:
             nom[k], tol[k] = b["nominal"]
@@ -73,12 +74,16 @@ def test_table_rows_equal_scalar_evidence(bins, assumed, req, quantity) -> None:
         prop_tol=np.array(pt),
         assumed=assumed,
     )
+    # the matcher counts specimens only for the rows it shows
+    shown_rows = sorted(k for k in shown if k < len(bins))
+    counts = [len({sp for _, _, sp in bins[k]["readings"] if sp is not None}) for k in shown_rows]
+    table = table.with_specimens(np.array(shown_rows, dtype=int), np.array(counts, dtype=int))
     least = table.at_least(req)
     most = table.at_most(req)
     for k, b in enumerate(bins):
         ev = build_evidence(
             quantity,
-            [ReadingValue(v, ">=" if is_b else "=") for v, is_b in b["readings"]],
+            [ReadingValue(v, ">=" if is_b else "=", sp) for v, is_b, sp in b["readings"]],
             nominal=Nominal(*b["nominal"]) if b["nominal"] else None,
             properties=[PropertyValue(v, s, t) for v, s, t in b["props"]],
             assumed=assumed,
@@ -89,6 +94,8 @@ def test_table_rows_equal_scalar_evidence(bins, assumed, req, quantity) -> None:
             a, e = getattr(row, name), getattr(ev, name)
             assert (math.isnan(a) and math.isnan(e)) or math.isclose(a, e, rel_tol=1e-12), name
         assert row.n == ev.n and row.lower_bound_only == ev.lower_bound_only
+        if k in shown_rows and ev.grade == "measured" and b["readings"]:
+            assert row.specimens == ev.specimens and row.describe() == ev.describe()
         assert STATUSES[least[k]] == ev.at_least(req)
         assert STATUSES[most[k]] == ev.at_most(req)
 
@@ -97,7 +104,7 @@ def test_table_rows_equal_scalar_evidence(bins, assumed, req, quantity) -> None:
 @given(readings=st.lists(_reading, min_size=1, max_size=5), a=_value, b=_value)
 def test_at_least_is_monotone(readings, a, b) -> None:
     lo, hi = sorted((a, b))
-    ev = build_evidence("isat_20", [ReadingValue(v, ">=" if x else "=") for v, x in readings])
+    ev = build_evidence("isat_20", [ReadingValue(v, ">=" if x else "=", s) for v, x, s in readings])
     order = {"pass": 0, "unverified": 1, "fail": 2}
     # a harder requirement is never judged better than an easier one
     assert order[ev.at_least(hi)] >= order[ev.at_least(lo)] or ev.at_least(lo) == "fail"

@@ -12,7 +12,7 @@ statuses 0 pass, 1 fail, 2 unverified (:data:`STATUSES` order).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -43,6 +43,9 @@ class EvidenceTable:
     n: np.ndarray
     lower_bound_only: np.ndarray
     higher_is_better: bool
+    #: Distinct specimens behind each row's readings; -1 where not counted (the
+    #: matcher counts them only for the rows it shows). None: not counted at all.
+    specimens: np.ndarray | None = None
 
     def __len__(self) -> int:
         return int(self.grade.size)
@@ -74,8 +77,18 @@ class EvidenceTable:
         out[known & (self.high <= req)] = PASS
         return out
 
+    def with_specimens(self, rows: np.ndarray, counts: np.ndarray) -> EvidenceTable:
+        """A copy that knows the specimen count of ``rows`` (others stay as they were)."""
+        known = np.full(len(self), -1, dtype=np.int64) if self.specimens is None else self.specimens
+        known = known.copy()
+        known[np.asarray(rows, dtype=np.int64)] = counts
+        return replace(self, specimens=known)
+
     def row(self, k: int, specimens: int = 0, source: str = "") -> Evidence:
-        """The scalar :class:`Evidence` of row ``k``."""
+        """The scalar :class:`Evidence` of row ``k`` (``specimens``: its specimen count,
+        when the table does not know it)."""
+        if not specimens and self.specimens is not None:
+            specimens = max(int(self.specimens[k]), 0)
         g = GRADES[int(self.grade[k])]
         if g == "unknown":
             return Evidence(self.quantity, "unknown", higher_is_better=self.higher_is_better)

@@ -108,10 +108,16 @@ def rank(
     """Ranked rows of a role, best first (only the first ``top`` when given)."""
     sc = scores(rv, spec, needed)
     idx = order(rv, sc)
-    if top is not None:
-        idx = idx[:top]
+    return rows_at(rv, spec, idx if top is None else idx[:top], sc)
+
+
+def rows_at(
+    rv: RoleVerdicts, spec: Spec | None, idx: np.ndarray, score: np.ndarray
+) -> list[RankedRow]:
+    """The ranked rows of candidates ``idx``, which are the first rows of :func:`order`
+    (ranks 1, 2, ... in that order); ``score`` as :func:`scores` gave it."""
     group = rv.matrix.group()
-    return [_row(rv, spec, int(k), pos, sc, group) for pos, k in enumerate(idx, 1)]
+    return [_row(rv, spec, int(k), pos, score, group) for pos, k in enumerate(idx, 1)]
 
 
 def rank_one(rv: RoleVerdicts, spec: Spec | None, k: int, *, needed: int = 1) -> RankedRow:

@@ -402,6 +402,29 @@ class RoleVerdicts:
     row_notes: Mapping[int, tuple[str, ...]] = field(default_factory=dict)
     demand_notes: tuple[str, ...] = ()
 
+    def with_specimens(self, counts: Mapping[str, tuple[np.ndarray, np.ndarray]]) -> RoleVerdicts:
+        """A copy whose evidence tables know specimen counts: ``counts[quantity]`` is
+        (candidate rows, distinct specimens behind each row's readings of that
+        quantity). Every table of that quantity gets them, the ones the checks read
+        included (such as the Isat table the inductor checks build)."""
+        new: dict[int, EvidenceTable] = {}
+
+        def counted(t: EvidenceTable | None) -> EvidenceTable | None:
+            if t is None or t.quantity not in counts:
+                return t
+            if id(t) not in new:
+                rows, n = counts[t.quantity]
+                new[id(t)] = t.with_specimens(rows, n) if np.size(rows) else t
+            return new[id(t)]
+
+        tables = {q: counted(t) for q, t in self.candidates.tables.items()}
+        matrix_tables = tuple(counted(t) for t in self.matrix.tables)
+        return replace(
+            self,
+            candidates=replace(self.candidates, tables=tables),
+            matrix=replace(self.matrix, tables=matrix_tables),
+        )
+
 
 def _stock_requirement(per_board: int) -> Requirement:
     return Requirement(

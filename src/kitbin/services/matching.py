@@ -21,7 +21,7 @@ from kitbin.errors import KitbinError, NotFoundError, SpecError
 from kitbin.match.divider import DividerResult, Leg, StockArrays, best_divider
 from kitbin.match.evidence import GRADES, grade_of_source
 from kitbin.match.evidence_table import EvidenceTable, evidence_table
-from kitbin.match.ranking import RankedRow, rank, status_counts
+from kitbin.match.ranking import RankedRow, order, rows_at, scores, status_counts
 from kitbin.match.verdicts import (
     Candidates,
     Check,
@@ -361,14 +361,18 @@ def match_plan(
             if d.role == DIVIDER_ROLE:
                 quantities.append("resistance")
         stock = load_stock(session, kinds, quantities)
-    roles: dict[str, RoleMatch] = {}
-    divider = None
-    for d in wanted:
-        if d.role == DIVIDER_ROLE:
-            _, cands = stock.subset(kinds_for(d.role, d), ["resistance"])
-            divider = choose_divider(spec, d, cands, boards=boards)
-            continue
-        roles[d.role] = judge_role(spec, d, stock, top=top, boards=boards)
+        roles: dict[str, RoleMatch] = {}
+        divider = None
+        for d in wanted:
+            if d.role == DIVIDER_ROLE:
+                _, cands = stock.subset(kinds_for(d.role, d), ["resistance"])
+                divider = choose_divider(spec, d, cands, boards=boards)
+                continue
+            # judged inside the transaction: the specimen counts of the rows shown are
+            # read from the same snapshot as the evidence
+            roles[d.role] = judge_role(
+                spec, d, stock, top=top, boards=boards, specimens=SpecimenReader(session)
+            )
     network = None
     rm = roles.get("set_resistor")
     if rm is not None and (rm.best is None or rm.best.verdict != "verified"):
@@ -431,17 +435,61 @@ def choose_set_network(demand: Demand, cands: Candidates, *, boards: int) -> Net
     return NetworkMatch(leg, tuple(checks), verdict, note)
 
 
+class SpecimenReader:
+    """Reads how many specimens stand behind the readings of the rows a role shows.
+
+    Counting distinct specimens for every candidate would add a column to the
+    matcher's largest read (measured: +0.05 s on 300,000 readings) for a number only
+    the shown rows print ("4 readings on 2 specimens"), so it is read for those rows
+    alone, in the same transaction as the evidence.
+    """
+
+    def __init__(self, session: Session) -> None:
+        self.session = session
+
+    def __call__(
+        self, bin_ids: np.ndarray, rows: np.ndarray, quantities: Iterable[str]
+    ) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+        """``quantity -> (rows, counts)`` for the candidates at ``rows``, whose bin ids
+        are ``bin_ids[rows]``."""
+        rows = np.asarray(rows, dtype=np.int64)
+        if not rows.size:
+            return {}
+        row_of = {int(b): int(r) for b, r in zip(bin_ids[rows], rows, strict=True)}
+        found = bulk.specimen_counts(self.session, list(quantities), row_of)
+        by_q: dict[str, tuple[list[int], list[int]]] = {}
+        for bin_id, q, count in found:
+            r, n = by_q.setdefault(q, ([], []))
+            r.append(row_of[bin_id])
+            n.append(count)
+        return {q: (np.array(r, dtype=np.int64), np.array(n)) for q, (r, n) in by_q.items()}
+
+
 def judge_role(
-    spec: Spec, demand: Demand, stock: Stock, *, top: int | None, boards: int
+    spec: Spec,
+    demand: Demand,
+    stock: Stock,
+    *,
+    top: int | None,
+    boards: int,
+    specimens: SpecimenReader | None = None,
 ) -> RoleMatch:
-    """Judge and rank one role's candidates."""
+    """Judge and rank one role's candidates (``specimens``: reads the specimen counts
+    of the rows kept, for their evidence lines)."""
     kinds = kinds_for(demand.role, demand)
-    rows_idx, cands = stock.subset(kinds, quantities_for(demand.role, demand, spec))
+    wanted_q = quantities_for(demand.role, demand, spec)
+    rows_idx, cands = stock.subset(kinds, wanted_q)
     if demand.role == "inductor":
         rv = inductor_verdicts(spec, demand, cands, per_board=boards)
     else:
         rv = generic_verdicts(demand, cands, per_board=boards)
-    ranked = rank(rv, spec, top=top, needed=boards)
+    score = scores(rv, spec, boards)
+    shown = order(rv, score)
+    if top is not None:
+        shown = shown[:top]
+    if specimens is not None:
+        rv = rv.with_specimens(specimens(stock.ids[rows_idx], shown, wanted_q))
+    ranked = rows_at(rv, spec, shown, score)
     return RoleMatch(
         demand.role,
         kinds,

@@ -141,6 +141,24 @@ def property_rows(session: Session, names: Sequence[str]) -> np.ndarray:
     return _fetch(session, stmt, PROPERTY_FIELDS)
 
 
+def specimen_counts(
+    session: Session, quantities: Sequence[str], bin_ids: Iterable[int] | None = None
+) -> list[tuple[int, str, int]]:
+    """(bin_id, quantity, distinct specimens) of the readings of these quantities, for
+    these bins (every bin when None); a reading with no specimen number counts none."""
+    stmt = (
+        select(Reading.bin_id, Reading.quantity, func.count(Reading.specimen.distinct()))
+        .where(Reading.quantity.in_(list(quantities)))
+        .group_by(Reading.bin_id, Reading.quantity)
+    )
+    if bin_ids is not None:
+        ids = sorted({int(i) for i in bin_ids})
+        if not ids:
+            return []
+        stmt = stmt.where(Reading.bin_id.in_(ids))
+    return [(int(b), str(q), int(n)) for b, q, n in session.execute(stmt)]
+
+
 def curve_rows(session: Session, kinds: Iterable[str]) -> list[tuple[int, dict[str, Any]]]:
     """(bin_id, curve) of every capture with a stored curve on bins of these kinds,
     oldest first (a later capture of the same bin replaces an earlier one)."""
@@ -258,4 +276,5 @@ __all__ = [
     "property_rows",
     "reading_rows",
     "set_pick_state",
+    "specimen_counts",
 ]
