@@ -24,6 +24,18 @@ class ExitCode(IntEnum):
     CAPTURE = 7
 
 
+#: Characters that would break the one line of an error (line breaks, tabs and other
+#: control characters, Unicode line and paragraph separators), shown escaped instead.
+_UNPRINTABLE = {
+    c: repr(chr(c))[1:-1] for c in (*range(0x20), 0x7F, *range(0x80, 0xA0), 0x2028, 0x2029)
+}
+
+
+def one_line(text: str) -> str:
+    """``text`` with line breaks and other control characters shown escaped."""
+    return text.translate(_UNPRINTABLE)
+
+
 class KitbinError(Exception):
     """Base of every error kitbin reports to a user.
 
@@ -43,7 +55,9 @@ class KitbinError(Exception):
         self.hint = hint
 
     def __str__(self) -> str:
-        return f"{self.msg} ({self.hint})" if self.hint else self.msg
+        """The message and hint on one line: a newline or other control character
+        taken from the user's input (a label, a CSV cell) is shown escaped (``\\n``)."""
+        return one_line(f"{self.msg} ({self.hint})" if self.hint else self.msg)
 
 
 class QuantityError(KitbinError, ValueError):

@@ -9,7 +9,7 @@ from typer.core import TyperGroup
 
 from kitbin import __version__
 from kitbin.cli.common import CliState
-from kitbin.errors import KitbinError
+from kitbin.errors import KitbinError, one_line
 
 
 class KitbinGroup(TyperGroup):
@@ -42,7 +42,7 @@ class KitbinGroup(TyperGroup):
         except ClickException as error:
             if not standalone_mode:
                 raise
-            message = f"kitbin: error: {error.format_message()}"
+            message = f"kitbin: error: {one_line(error.format_message())}"
             if isinstance(error, UsageError) and error.ctx is not None:
                 message += f" (see `{error.ctx.command_path} --help`)"
             typer.echo(message, err=True)
