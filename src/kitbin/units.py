@@ -160,8 +160,9 @@ def parse_quantity(text: str, expect: str) -> float:
 def parse_range(text: str, expect: str) -> tuple[float, float]:
     """Parse ``"11..15V"`` (or ``"11V..15V"``, or a single value) into ``(low, high)``.
 
-    A unit written only after the second number applies to both. A single value
-    gives ``(value, value)``.
+    A unit written only after the second number applies to both; after a code such
+    as ``4k7`` its letter does (``"1..4k7"`` is 1 kΩ to 4.7 kΩ). A single value gives
+    ``(value, value)``.
 
     Raises
     ------
@@ -176,8 +177,14 @@ def parse_range(text: str, expect: str) -> tuple[float, float]:
     left, right = match.group(1), match.group(2)
     right_unit = _NUMBER_UNIT.match(right)
     left_unit = _NUMBER_UNIT.match(left)
-    if right_unit and left_unit and not left_unit.group(2) and right_unit.group(2):
-        left = left + right_unit.group(2)
+    right_rkm = _RKM.match(right)
+    if left_unit and not left_unit.group(2):
+        if right_rkm and right_rkm.group(3):
+            # "1..4k7": the code letter is the prefix (or unit) both ends share; the
+            # digits after it belong to the second number alone
+            left = left + right_rkm.group(2)
+        elif right_unit and right_unit.group(2):
+            left = left + right_unit.group(2)
     low, high = parse_quantity(left, expect), parse_quantity(right, expect)
     if low > high:
         raise QuantityError(

@@ -95,6 +95,14 @@ def test_parse_range() -> None:
     assert parse_range("11 .. 15 V", "voltage") == (11.0, 15.0)
     assert parse_range("1.5..3A", "current") == (1.5, 3.0)
     assert parse_range("5V", "voltage") == (5.0, 5.0)
+    # a code on the right (IEC 60062 RKM): its letter is shared, not its digits
+    assert parse_range("1k..4k7", "resistance") == (1e3, 4.7e3)
+    assert parse_range("1..4k7", "resistance") == (1e3, 4.7e3)
+    assert parse_range("0..4k7", "resistance") == (0.0, 4.7e3)
+    assert parse_range("1..4R7", "resistance") == (1.0, 4.7)
+    assert parse_range("10..100k", "resistance") == (10e3, 100e3)
+    assert parse_range("4k7..47k", "resistance") == (4.7e3, 47e3)
+    assert parse_range("1u..4u7", "inductance") == pytest.approx((1e-6, 4.7e-6))
     with pytest.raises(QuantityError, match="written backwards"):
         parse_range("15..11V", "voltage")
     with pytest.raises(QuantityError):
