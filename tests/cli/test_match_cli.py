@@ -125,3 +125,37 @@ def test_shown_evidence_lines_say_what_bin_show_says(tmp_path: Path) -> None:
                 compared += 1
                 with_specimens += "specimen" in c["evidence"]
     assert compared >= 10 and with_specimens >= 5
+
+
+def test_the_bottom_resistor_range_is_the_plans(db: Path) -> None:
+    # Hand-worked (parallel resistors, 1/R = 1/R1 + 1/R2; divider as in the module
+    # docstring): with the bottom leg kept in 1k..5k the only leg there is
+    # R-BOT || R-BOT = 10.0k / 2 = 5.00k, and Rtop/Rbot = 5.25 asks for 26.25k, which
+    # R-TOP || R-TOP = 52.5k / 2 gives exactly: Vout = 0.8 x 6.25 = 5.000 V.
+    assert kb(db, "plan", "edit", "bench-5v", "--rbottom", "1k..5k").exit_code == 0
+    r = kb(db, "match", "bench-5v", "--role", "feedback_divider", "--json")
+    div = json.loads(r.stdout)["divider"]
+    assert div["rbottom"] == "R-BOT ∥ R-BOT" and div["rtop"] == "R-TOP ∥ R-TOP"
+    assert div["rbottom_ohm"] == pytest.approx(5.0e3) and div["rtop_ohm"] == pytest.approx(26.25e3)
+    assert div["vout_V"] == pytest.approx(5.000, abs=1e-9)
+    assert div["rbottom_range_ohm"] == [1e3, 5e3]
+    # nothing stocked makes a bottom leg of 200k..300k (two 52.5k in series are 105k)
+    assert kb(db, "plan", "edit", "bench-5v", "--rbottom", "200k..300k").exit_code == 0
+    r = kb(db, "match", "bench-5v", "--role", "feedback_divider", "--json")
+    div = json.loads(r.stdout)["divider"]
+    assert div["verdict"] == "fails" and div["rbottom"] is None
+    assert "200 kΩ … 300 kΩ" in div["note"]
+
+
+def test_the_default_bottom_range_is_1k_to_100k(db: Path) -> None:
+    r = kb(db, "match", "bench-5v", "--role", "feedback_divider", "--json")
+    assert json.loads(r.stdout)["divider"]["rbottom_range_ohm"] == [1e3, 100e3]
+
+
+@pytest.mark.parametrize("text", ["5k..1k", "1uF..5k", "0..5k", "lots"])
+def test_a_bad_bottom_range_is_refused_and_changes_nothing(db: Path, text: str) -> None:
+    before = snapshot(db)
+    r = kb(db, "plan", "edit", "bench-5v", "--rbottom", text)
+    assert r.exit_code == 3
+    assert r.stderr.startswith("kitbin: error: ") and len(r.stderr.strip().splitlines()) == 1
+    assert snapshot(db) == before

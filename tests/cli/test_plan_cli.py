@@ -93,6 +93,15 @@ def test_toml_round_trip(db: Path, tmp_path: Path) -> None:
     assert r.exit_code == 0, r.output
     spec = json.loads(r.stdout)["spec"]
     assert spec["vin_min"] == 4.5 and spec["extras"][0]["limit"] == pytest.approx(100e-9)
+    ranged = tmp_path / "ranged.toml"
+    ranged.write_text(
+        hand.read_text().replace('vout = "12V"', 'vout = "12V"\nrbottom = "4k7..47k"')
+    )
+    r = kb(db, "plan", "new", "d", "--from", str(ranged), "--json")
+    assert r.exit_code == 0, r.output
+    spec = json.loads(r.stdout)["spec"]
+    assert spec["rbottom_min"] == pytest.approx(4.7e3) and spec["rbottom_max"] == 47e3
+    assert rows["a"]["rbottom_min"] == 1e3 and rows["a"]["rbottom_max"] == 100e3  # defaults
 
 
 @pytest.mark.parametrize(
@@ -107,6 +116,8 @@ def test_toml_round_trip(db: Path, tmp_path: Path) -> None:
         (["plan", "new", "keep", *NEW], "already exists"),
         (["plan", "edit", "keep", "--vin", "15..11V"], "written backwards"),
         (["plan", "edit", "keep", "--vout", "20V"], "buck cannot make"),
+        (["plan", "edit", "keep", "--rbottom", "47k..4k7"], "written backwards"),
+        (["plan", "edit", "keep", "--rbottom", "0..4k7"], "bottom-resistor range"),
         (["plan", "show", "nothing"], "not found"),
         (["plan", "new", "x", "--from", "missing.toml"], "not found"),
     ],

@@ -36,6 +36,7 @@ _SPEC_HELP = {
     "--ifb": "Feedback-pin current.",
     "--ilim-gain": "Current-limit set gain (V): Ilim = gain / Rset.",
     "--ilim-target": "Current limit wanted from the set resistor.",
+    "--rbottom": "Range for the divider's bottom resistor, e.g. 4.7k..47k (default 1k..100k).",
 }
 
 

@@ -287,6 +287,8 @@ class DividerMatch:
     note: str
     vref: float | None
     stock: StockArrays | None = None
+    #: The (low, high) range the bottom leg was searched in, Ω (the plan's rbottom).
+    rbottom_range: list[float] | None = None
 
 
 @dataclass
@@ -513,11 +515,13 @@ def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int
 
     if spec.vref is None:
         note = "controller reference voltage unknown: no divider searched (give the plan a vref)"
-        return DividerMatch(None, (), "fails", note, None)
+        rbot_range = [spec.rbottom_min, spec.rbottom_max]
+        return DividerMatch(None, (), "fails", note, None, rbottom_range=rbot_range)
     stock = resistor_stock(cands, boards)
     tol = spec.vref_tol or 0.0
     ifb = spec.ifb or 0.0
-    kw = {"vref_tol": tol, "ifb": ifb, "boards": boards}
+    rbot = (spec.rbottom_min, spec.rbottom_max)
+    kw = {"vref_tol": tol, "ifb": ifb, "boards": boards, "rbot_range": rbot}
     lo_ratio, hi_ratio, _share = divider_window(spec)
     best = best_divider(stock, spec.vref, spec.vout, **kw)
     checks = _divider_checks(demand, best, stock)
@@ -527,7 +531,11 @@ def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int
         if combo is not None and _better(combo_checks, checks, combo, best):
             best, checks = combo, combo_checks
     if best is None:
-        return DividerMatch(None, (), "fails", "no resistor in stock for the bottom leg", spec.vref)
+        from kitbin.units import format_quantity
+
+        span = " … ".join(format_quantity(v, "resistance") for v in rbot)
+        note = f"no resistor or pair of resistors in stock for the bottom leg in {span}"
+        return DividerMatch(None, (), "fails", note, spec.vref, rbottom_range=list(rbot))
     group = (
         2
         if any(c.status == "fail" for c in checks)
@@ -547,7 +555,7 @@ def choose_divider(spec: Spec, demand: Demand, cands: Candidates, *, boards: int
             + ", ".join(dict.fromkeys(marked))
             + " to narrow the band"
         )
-    return DividerMatch(best, checks, VERDICTS[group], note, spec.vref, stock)
+    return DividerMatch(best, checks, VERDICTS[group], note, spec.vref, stock, list(rbot))
 
 
 def resistor_stock(cands: Candidates, boards: int) -> StockArrays:
@@ -691,6 +699,7 @@ def divider_dict(d: DividerMatch) -> dict[str, Any]:
             "vout_V": None,
             "error_pct": None,
             "vout_band_V": None,
+            "rbottom_range_ohm": d.rbottom_range,
             "verdict": d.verdict,
             "note": d.note,
             "checks": [],
@@ -705,6 +714,7 @@ def divider_dict(d: DividerMatch) -> dict[str, Any]:
         "error_pct": r.error_pct,
         "vout_band_V": [r.vout_low, r.vout_high],
         "vref_V": d.vref,
+        "rbottom_range_ohm": d.rbottom_range,
         "verdict": d.verdict,
         "note": d.note,
         "checks": [check_dict(c) for c in d.checks],

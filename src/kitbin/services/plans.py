@@ -56,6 +56,13 @@ OPTION_FIELDS: dict[str, str] = {
     "--ifb": "ifb",
     "--ilim-gain": "ilim_gain",
     "--ilim-target": "ilim_target",
+    "--rbottom": "rbottom",
+}
+
+#: Options and TOML keys that give two spec fields as one range ("11..15V").
+RANGE_FIELDS: dict[str, tuple[str, str, str]] = {
+    "vin": ("vin_min", "vin_max", "voltage"),
+    "rbottom": ("rbottom_min", "rbottom_max", "resistance"),
 }
 
 _NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9 ._\-+/#]{0,199}$")
@@ -118,9 +125,10 @@ def parse_spec_texts(texts: dict[str, str | None]) -> dict[str, Any]:
         if text is None:
             continue
         field = OPTION_FIELDS[option]
-        if field == "vin":
+        if field in RANGE_FIELDS:
+            low, high, dim = RANGE_FIELDS[field]
             try:
-                out["vin_min"], out["vin_max"] = parse_range(text, "voltage")
+                out[low], out[high] = parse_range(text, dim)
             except QuantityError as e:
                 raise QuantityError(f"{option}: {e.msg}", e.hint) from None
         elif field == "sync":
@@ -173,16 +181,18 @@ def read_toml(path: str | Path) -> tuple[dict[str, Any], str | None]:
     out: dict[str, Any] = {}
     for key, value in raw.items():
         where = f"{p.name}: {key}"
-        if key == "vin":
+        if key in RANGE_FIELDS:
             from kitbin.units import parse_range
 
+            low, high, dim = RANGE_FIELDS[key]
             if isinstance(value, str):
                 try:
-                    out["vin_min"], out["vin_max"] = parse_range(value, "voltage")
+                    out[low], out[high] = parse_range(value, dim)
                 except QuantityError as e:
                     raise QuantityError(f"{where}: {e.msg}") from None
             else:
-                raise SpecError(f'{where}: expected text such as "11..15V"')
+                example = "11..15V" if key == "vin" else "1k..100k"
+                raise SpecError(f'{where}: expected text such as "{example}"')
         elif key == "extras":
             if not isinstance(value, list):
                 raise SpecError(f"{where}: expected [[extras]] tables")
@@ -202,7 +212,9 @@ def read_toml(path: str | Path) -> tuple[dict[str, Any], str | None]:
                 extras.append(item)
             out["extras"] = extras
         elif key not in SPEC_FIELDS:
-            raise SpecError(f"{where}: unknown key (expected one of vin, {', '.join(SPEC_FIELDS)})")
+            raise SpecError(
+                f"{where}: unknown key (expected one of vin, rbottom, {', '.join(SPEC_FIELDS)})"
+            )
         else:
             out[key] = _parse_field(key, value, where)
     if notes is not None and not isinstance(notes, str):

@@ -653,6 +653,8 @@ def _divider(spec: Spec) -> Demand:
         )
     notes = (
         "judge the ratio at the resistors' worst-case tolerance ends (or their measured values)",
+        f"the bottom resistor (or leg) is chosen in {q(spec.rbottom_min, 'resistance')} … "
+        f"{q(spec.rbottom_max, 'resistance')}",
     )
     return Demand(role, tuple(cs), notes)
 

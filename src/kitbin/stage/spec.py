@@ -61,6 +61,14 @@ DEFAULT_SOURCES: dict[str, str] = {
         "(" + COMMON + ")"
     ),
     "fsw_tol": "±10 % between the plan's and a controller's switching frequency (" + COMMON + ")",
+    "rbottom_min": (
+        "1 kΩ lower end of the feedback divider's bottom resistor: below it the divider "
+        "wastes power and loads the output (" + COMMON + ")"
+    ),
+    "rbottom_max": (
+        "100 kΩ upper end of the feedback divider's bottom resistor: above it the "
+        "feedback-pin current, leakage and noise pickup shift the output (" + COMMON + ")"
+    ),
 }
 
 
@@ -151,6 +159,8 @@ class Spec:
         Multiple of the worst peak current used when ``ilim_target`` is None.
     fsw_tol
         Allowed relative difference between ``fsw`` and a controller's frequency.
+    rbottom_min, rbottom_max
+        Range the feedback divider's bottom resistor (or leg) is searched in, Ω.
     extras
         Fixed parts added by the user.
     controller
@@ -193,6 +203,8 @@ class Spec:
     ilim_target: float | None = None
     ilim_headroom: float = 1.25
     fsw_tol: float = 0.1
+    rbottom_min: float = 1e3
+    rbottom_max: float = 100e3
     extras: tuple[ExtraPart, ...] = field(default=())
     controller: str | None = None
 
@@ -278,6 +290,8 @@ FIELD_DIMENSIONS: dict[str, str] = {
     "ilim_target": "current",
     "ilim_headroom": "ratio",
     "fsw_tol": "ratio",
+    "rbottom_min": "resistance",
+    "rbottom_max": "resistance",
 }
 
 #: Controller bin properties (names in :mod:`kitbin.quantities`) and the spec field each fills.
@@ -429,6 +443,11 @@ def validate(spec: Spec) -> None:
         raise SpecError(f"output tolerance {spec.vout_tol:g}: expected a fraction between 0 and 1")
     if not 0 < spec.fsw_tol < 1:
         raise SpecError(f"fsw_tol {spec.fsw_tol:g}: expected a fraction between 0 and 1")
+    if not 0 < spec.rbottom_min <= spec.rbottom_max:
+        raise SpecError(
+            f"bottom-resistor range {spec.rbottom_min:g}..{spec.rbottom_max:g} Ω: expected "
+            "positive values, low..high"
+        )
     for name in ("ilim", "ifb", "ilim_gain", "ilim_target", "ctrl_vin_min", "ctrl_vin_max"):
         value = getattr(spec, name)
         if value is not None and value < 0:
