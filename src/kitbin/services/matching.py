@@ -52,7 +52,8 @@ class RawEvidence:
     Per reading and per property: the bin's row in the stock, the index of its
     quantity in ``quantities`` (``names`` for properties, which adds the ``<q>_tol``
     names), the value, and the lower-bound flag or the grade code of the source.
-    Per bin: the nominal, its tolerances, and which quantity the nominal describes.
+    Per bin: the nominal, its tolerances, and which quantity the nominal describes
+    (its index in ``quantities``, -1 for none of them).
     """
 
     quantities: tuple[str, ...]
@@ -97,7 +98,7 @@ class RawEvidence:
                     tol_by_row = np.zeros(rows.size)
                     tol_by_row[p_at[tmask]] = self.prop_value[tmask]
                     prop_tol = tol_by_row[p_at[pm]]
-            has_nominal = nominal_q == q
+            has_nominal = nominal_q == qi
             out[q] = evidence_table(
                 q,
                 rows.size,
@@ -154,6 +155,11 @@ class Stock:
         return rows, Candidates(self.labels[rows], self.available[rows], tables, curves)
 
 
+def _grade_code(source: str) -> int:
+    """The evidence grade of a property's source text as its index in GRADES."""
+    return GRADES.index(grade_of_source(source))
+
+
 _EMPTY_READINGS = np.empty(0, dtype=bulk.READING_FIELDS)
 _EMPTY_PROPERTIES = np.empty(0, dtype=bulk.PROPERTY_FIELDS)
 
@@ -178,13 +184,13 @@ def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]
     reads = reads[r_keep]
 
     names = quantities + tuple(f"{q}_tol" for q in quantities if f"{q}_tol" in QUANTITIES)
-    props = bulk.property_rows(session, names) if n else _EMPTY_PROPERTIES
+    props = bulk.property_rows(session, names, _grade_code) if n else _EMPTY_PROPERTIES
     p_row, p_keep = _rows_of(ids_a, props["bin_id"])
     props = props[p_keep]
-    codes = {src: GRADES.index(grade_of_source(src)) for src in set(props["source"])}
-    p_grade = np.fromiter((codes[src] for src in props["source"]), np.int8, count=props.size)
+    p_grade = props["source"]
 
-    nominal_q = np.array([NOMINAL_QUANTITY.get(k, "") for k in kinds], dtype=object)
+    marked = [NOMINAL_QUANTITY.get(k) for k in kinds]
+    nominal_q = np.array([quantities.index(q) if q in quantities else -1 for q in marked], np.int8)
     raw = RawEvidence(
         quantities=quantities,
         names=names,
@@ -199,7 +205,7 @@ def load_stock(session: Session, kinds: Iterable[str], quantities: Iterable[str]
         nominal=bins["nominal"],
         tol_minus=bins["tol_minus"],
         tol_plus=bins["tol_plus"],
-        nominal_quantity=nominal_q[bins["kind"]] if n else np.empty(0, dtype=object),
+        nominal_quantity=nominal_q[bins["kind"]] if n else np.empty(0, dtype=np.int8),
     )
     curves: dict[int, tuple[np.ndarray, np.ndarray]] = {}
     if "inductor" in kinds and n:

@@ -8,7 +8,7 @@ column, ready for numpy. Bound parameters only.
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from typing import Any
 
 import numpy as np
@@ -33,10 +33,13 @@ BIN_FIELDS = np.dtype(
 READING_FIELDS = np.dtype(
     [("bin_id", np.int64), ("quantity", np.int8), ("value", float), ("lower_bound", bool)]
 )
-#: Fields of :func:`property_rows`.
+#: Fields of :func:`property_rows` (``source``: the caller's code for the source text).
 PROPERTY_FIELDS = np.dtype(
-    [("bin_id", np.int64), ("name", np.int8), ("value", float), ("source", object)]
+    [("bin_id", np.int64), ("name", np.int8), ("value", float), ("source", np.int8)]
 )
+#: Codes a property's source may be given (0 .. _SOURCE_CODES - 1); the next one marks
+#: a source text the query did not know.
+_SOURCE_CODES = 7
 #: Most quantities (or property names) one read can ask for: their index shares a
 #: packed integer with the bin id (see :func:`reading_rows`).
 MAX_NAMES = 32
@@ -124,21 +127,50 @@ def reading_rows(session: Session, quantities: Sequence[str]) -> np.ndarray:
     return out
 
 
-def property_rows(session: Session, names: Sequence[str]) -> np.ndarray:
+def property_rows(
+    session: Session, names: Sequence[str], source_code: Callable[[str], int]
+) -> np.ndarray:
     """Properties with these names as a :data:`PROPERTY_FIELDS` array (``name``
-    indexes ``names``), by property id."""
+    indexes ``names``; ``source`` is ``source_code(source text)``, e.g. an evidence
+    grade from 0 to 6), by property id.
+
+    The source texts are few, so they are read once (``SELECT DISTINCT``) and their
+    codes go into the query as a ``CASE``; a row then travels as two numbers, bin id,
+    name and code packed into one integer (measured: 0.035 s against 0.070 s for
+    80,000 rows with the text). A source that appears between the two statements
+    (another bench, on PostgreSQL) is read the slow way.
+    """
     names = _check_names(names)
-    stmt = (
-        select(
-            BinProperty.bin_id,
-            _code(BinProperty.name, names),
-            BinProperty.value,
-            BinProperty.source,
-        )
-        .where(BinProperty.name.in_(names))
-        .order_by(BinProperty.id)
-    )
-    return _fetch(session, stmt, PROPERTY_FIELDS)
+    wanted = BinProperty.name.in_(names)
+    texts = [t for (t,) in session.execute(select(BinProperty.source).where(wanted).distinct())]
+    codes = {t: int(source_code(t)) for t in texts}
+    if any(not 0 <= c < _SOURCE_CODES for c in codes.values()):
+        raise ValueError(f"source codes must be 0..{_SOURCE_CODES - 1}")
+    whens = [(BinProperty.source == t, c) for t, c in codes.items()]
+    code = case(*whens, else_=_SOURCE_CODES) if whens else literal(_SOURCE_CODES)
+    packed = (BinProperty.bin_id * MAX_NAMES + _code(BinProperty.name, names)) * 8 + code
+    stmt = select(packed, BinProperty.value).where(wanted).order_by(BinProperty.id)
+    raw = _fetch(session, stmt, np.dtype([("key", np.int64), ("value", float)]))
+    key = raw["key"]
+    if (key % 8 == _SOURCE_CODES).any():  # a new source text: read the rows with their text
+        stmt = (
+            select(BinProperty.bin_id, _code(BinProperty.name, names), BinProperty.value,
+                   BinProperty.source)
+            .where(wanted)
+            .order_by(BinProperty.id)
+        )  # fmt: skip
+        rows = _fetch(session, stmt, np.dtype([("b", np.int64), ("n", np.int8), ("v", float),
+                                               ("s", object)]))  # fmt: skip
+        out = np.empty(rows.size, dtype=PROPERTY_FIELDS)
+        out["bin_id"], out["name"], out["value"] = rows["b"], rows["n"], rows["v"]
+        out["source"] = [codes[t] if t in codes else source_code(t) for t in rows["s"]]
+        return out
+    out = np.empty(raw.size, dtype=PROPERTY_FIELDS)
+    out["source"] = key % 8
+    out["name"] = (key // 8) % MAX_NAMES
+    out["bin_id"] = (key // 8) // MAX_NAMES
+    out["value"] = raw["value"]
+    return out
 
 
 def specimen_counts(
