@@ -137,3 +137,21 @@ def test_specimen_counts(filled) -> None:
             want[(r.bin_id, r.quantity)].add(r.specimen)
     assert {(b, q): n for b, q, n in got} == {k: len(v) for k, v in want.items()}
     assert {(b, q) for b, q, _ in some} == {k for k in want if k[0] in (7, 14, 21)}
+
+
+def test_a_roles_tables_are_the_rows_of_the_whole_stocks(filled) -> None:
+    # Stock.subset builds a role's evidence tables over its own bins only; each row
+    # must be the row of the same bin in the tables built over every bin.
+    from kitbin.services.matching import load_stock
+
+    kinds = ["inductor", "resistor", "capacitor", "diode"]
+    with filled.transaction() as s:
+        stock = load_stock(s, kinds, [*QUANTITIES, *NAMES])
+    whole = stock.tables
+    fields = ("grade", "low", "high", "closed_low", "closed_high", "max_low", "mean", "n")
+    for group in (["inductor"], ["resistor", "diode"], ["capacitor"]):
+        rows, cands = stock.subset(group, [*QUANTITIES, *NAMES])
+        assert rows.size and list(cands.labels) == list(stock.labels[rows])
+        for q, table in cands.tables.items():
+            for name in fields:
+                np.testing.assert_array_equal(getattr(table, name), getattr(whole[q], name)[rows])

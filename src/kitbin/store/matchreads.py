@@ -2,8 +2,10 @@
 
 The matcher judges every stocked bin of a role's kinds, so it loads bins, readings,
 properties and L(i) curves with one query each (only the kinds and quantities it
-needs), never one query per bin. Each function returns plain tuples grouped by
-column, ready for numpy. Bound parameters only.
+needs), never one query per bin. The bulk reads return numpy structured arrays
+(fields in ``BIN_FIELDS``, ``READING_FIELDS``, ``PROPERTY_FIELDS``); the specimen
+counts of the few rows a role shows come from one small query. Bound parameters
+only.
 """
 
 from __future__ import annotations
@@ -131,8 +133,8 @@ def property_rows(
     session: Session, names: Sequence[str], source_code: Callable[[str], int]
 ) -> np.ndarray:
     """Properties with these names as a :data:`PROPERTY_FIELDS` array (``name``
-    indexes ``names``; ``source`` is ``source_code(source text)``, e.g. an evidence
-    grade from 0 to 6), by property id.
+    indexes ``names``; ``source`` is ``source_code(source text)``, a code from 0 to 6
+    such as the index of an evidence grade), by property id.
 
     The source texts are few, so they are read once (``SELECT DISTINCT``) and their
     codes go into the query as a ``CASE``; a row then travels as two numbers, bin id,
