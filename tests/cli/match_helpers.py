@@ -76,3 +76,19 @@ def copy_of(template: Path, target: Path) -> Path:
         if src.exists():
             shutil.copy(src, Path(str(target) + suffix))
     return target
+
+
+def query(db: Path, sql: str, *args: object) -> list[tuple]:
+    """Rows of one SQL statement, read with the standard library's sqlite3."""
+    import sqlite3
+
+    con = sqlite3.connect(db)
+    try:
+        return con.execute(sql, args).fetchall()
+    finally:
+        con.close()
+
+
+def stock_of(db: Path) -> dict[str, tuple[int, int]]:
+    """Label -> (on hand, reserved) of every bin."""
+    return {lab: (q, r) for lab, q, r in query(db, "SELECT label, qty, qty_reserved FROM bin")}

@@ -16,19 +16,12 @@ from pathlib import Path
 
 import pytest
 from inventory_helpers import snapshot
-from match_helpers import build, copy_of, kb
-
-
-@pytest.fixture(scope="module")
-def template(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    path = tmp_path_factory.mktemp("match") / "inv.sqlite"
-    build(path)
-    return path
+from match_helpers import kb
 
 
 @pytest.fixture
-def db(template: Path, tmp_path: Path) -> Path:
-    return copy_of(template, tmp_path / "inv.sqlite")
+def db(match_db: Path) -> Path:
+    return match_db
 
 
 def test_json_shape_and_order(db: Path) -> None:

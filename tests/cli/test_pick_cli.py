@@ -12,36 +12,16 @@ from __future__ import annotations
 
 import csv
 import io
-import sqlite3
 from pathlib import Path
 
 import pytest
 from inventory_helpers import snapshot
-from match_helpers import build, copy_of, kb
-
-
-@pytest.fixture(scope="module")
-def template(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    path = tmp_path_factory.mktemp("pick") / "inv.sqlite"
-    build(path)
-    return path
+from match_helpers import kb, query, stock_of
 
 
 @pytest.fixture
-def db(template: Path, tmp_path: Path) -> Path:
-    return copy_of(template, tmp_path / "inv.sqlite")
-
-
-def _q(db: Path, sql: str, *args) -> list[tuple]:
-    con = sqlite3.connect(db)
-    try:
-        return con.execute(sql, args).fetchall()
-    finally:
-        con.close()
-
-
-def _stock(db: Path) -> dict[str, tuple[int, int]]:
-    return {lab: (q, r) for lab, q, r in _q(db, "SELECT label, qty, qty_reserved FROM bin")}
+def db(match_db: Path) -> Path:
+    return match_db
 
 
 def test_text_pick_list_and_bring_up(db: Path) -> None:
@@ -116,24 +96,24 @@ def test_reserve_then_done(db: Path) -> None:
     r = kb(db, "pick", "bench-5v", "--boards", "3", "--reserve")
     assert r.exit_code == 0, r.output
     assert "Pick list #1" in r.stdout and "reserved" in r.stderr
-    st = _stock(db)
+    st = stock_of(db)
     for label in ("L-A", "D-1", "U-1", "R-TOP", "R-BOT"):
         assert st[label] == (10, 3)
     assert st["C-IN"] == (10, 6) and st["C-OUT"] == (10, 0)  # C-IN serves two roles
-    assert _q(db, "SELECT id, state, boards FROM pick_list") == [(1, "reserved", 3)]
+    assert query(db, "SELECT id, state, boards FROM pick_list") == [(1, "reserved", 3)]
     r = kb(db, "picks", "list", "--json")
     assert r.exit_code == 0 and '"state": "reserved"' in r.stdout
-    moves_before = _q(db, "SELECT count(*) FROM stock_move")[0][0]
+    moves_before = query(db, "SELECT count(*) FROM stock_move")[0][0]
     r = kb(db, "picks", "done", "1")
     assert r.exit_code == 0, r.output
-    st = _stock(db)
+    st = stock_of(db)
     for label in ("L-A", "D-1", "U-1", "R-TOP", "R-BOT"):
         assert st[label] == (7, 0)
     assert st["C-IN"] == (4, 0)
-    moves = _q(db, "SELECT delta, pick_list_id FROM stock_move WHERE pick_list_id = 1")
+    moves = query(db, "SELECT delta, pick_list_id FROM stock_move WHERE pick_list_id = 1")
     assert len(moves) == 7 and all(d == -3 for d, _ in moves)
-    assert _q(db, "SELECT count(*) FROM stock_move")[0][0] == moves_before + 7
-    assert _q(db, "SELECT state FROM pick_list")[0][0] == "picked"
+    assert query(db, "SELECT count(*) FROM stock_move")[0][0] == moves_before + 7
+    assert query(db, "SELECT state FROM pick_list")[0][0] == "picked"
     # a second take is refused, one line, nothing changed
     before = snapshot(db)
     r = kb(db, "picks", "done", "1")
@@ -143,12 +123,12 @@ def test_reserve_then_done(db: Path) -> None:
 
 def test_reserve_then_cancel(db: Path) -> None:
     assert kb(db, "pick", "bench-5v", "--reserve").exit_code == 0
-    assert _stock(db)["L-A"] == (10, 1)
+    assert stock_of(db)["L-A"] == (10, 1)
     r = kb(db, "picks", "cancel", "1", "--json")
     assert r.exit_code == 0, r.output
-    assert _stock(db)["L-A"] == (10, 0)
-    assert _q(db, "SELECT state FROM pick_list")[0][0] == "cancelled"
-    assert _q(db, "SELECT count(*) FROM stock_move WHERE pick_list_id = 1")[0][0] == 0
+    assert stock_of(db)["L-A"] == (10, 0)
+    assert query(db, "SELECT state FROM pick_list")[0][0] == "cancelled"
+    assert query(db, "SELECT count(*) FROM stock_move WHERE pick_list_id = 1")[0][0] == 0
     assert kb(db, "picks", "done", "1").exit_code == 5
 
 
@@ -160,7 +140,7 @@ def test_reserve_with_shortfall_writes_nothing(db: Path) -> None:
     assert r.exit_code == 5, r.output
     assert "cannot reserve" in r.stderr and "short by 1" in r.stderr
     assert snapshot(db) == before
-    assert _q(db, "SELECT count(*) FROM pick_list")[0][0] == 0
+    assert query(db, "SELECT count(*) FROM pick_list")[0][0] == 0
     # without --reserve the list prints, with the shortfall shown
     r = kb(db, "pick", "bench-5v", "--boards", "11")
     assert r.exit_code == 0 and "SHORTFALL" in r.stdout
@@ -188,7 +168,7 @@ def test_demo_tour_step(tmp_path: Path) -> None:
     assert "1. L-" in text and "feedback divider" in text
     assert "bring-up sheet:" in text and "duty cycle at Vin" in text
     assert "licensed practice" in text
-    assert _q(tmp_path / "demo.sqlite", "SELECT name FROM plan") == [(DEMO_PLAN,)]
+    assert query(tmp_path / "demo.sqlite", "SELECT name FROM plan") == [(DEMO_PLAN,)]
 
 
 def test_unwritable_out_reserves_nothing(db: Path, tmp_path: Path) -> None:

@@ -8,40 +8,20 @@ serves both capacitor roles), as in tests/cli/test_pick_cli.py.
 from __future__ import annotations
 
 import json
-import sqlite3
 from pathlib import Path
 
 import pytest
 from inventory_helpers import snapshot
-from match_helpers import build, copy_of, kb
+from match_helpers import kb, query, stock_of
 
 from kitbin.errors import ExitCode
 
 ONCE = ("L-A", "D-1", "U-1", "R-TOP", "R-BOT")
 
 
-@pytest.fixture(scope="module")
-def template(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    path = tmp_path_factory.mktemp("drafts") / "inv.sqlite"
-    build(path)
-    return path
-
-
 @pytest.fixture
-def db(template: Path, tmp_path: Path) -> Path:
-    return copy_of(template, tmp_path / "inv.sqlite")
-
-
-def _q(db: Path, sql: str, *args) -> list[tuple]:
-    con = sqlite3.connect(db)
-    try:
-        return con.execute(sql, args).fetchall()
-    finally:
-        con.close()
-
-
-def _stock(db: Path) -> dict[str, tuple[int, int]]:
-    return {lab: (q, r) for lab, q, r in _q(db, "SELECT label, qty, qty_reserved FROM bin")}
+def db(match_db: Path) -> Path:
+    return match_db
 
 
 def _one_error(r, code: int) -> str:
@@ -53,17 +33,17 @@ def _one_error(r, code: int) -> str:
 
 
 def test_save_a_draft(db: Path) -> None:
-    before = _stock(db)
+    before = stock_of(db)
     r = kb(db, "pick", "bench-5v", "--boards", "2", "--save")
     assert r.exit_code == 0, r.output
     assert "Pick list #1" in r.stdout and "state draft" in r.stdout
     note = r.stderr.strip().splitlines()
     assert note == ["pick list 1 saved as a draft, no stock held; "
                     "reserve it with `kitbin picks reserve 1`"]  # fmt: skip
-    assert _stock(db) == before  # no stock held
-    assert _q(db, "SELECT id, state, boards FROM pick_list") == [(1, "draft", 2)]
-    assert _q(db, "SELECT count(*) FROM pick_line WHERE pick_list_id = 1")[0][0] == 7
-    assert _q(db, "SELECT count(*) FROM stock_move WHERE pick_list_id = 1")[0][0] == 0
+    assert stock_of(db) == before  # no stock held
+    assert query(db, "SELECT id, state, boards FROM pick_list") == [(1, "draft", 2)]
+    assert query(db, "SELECT count(*) FROM pick_line WHERE pick_list_id = 1")[0][0] == 7
+    assert query(db, "SELECT count(*) FROM stock_move WHERE pick_list_id = 1")[0][0] == 0
     listed = json.loads(kb(db, "picks", "list", "--state", "draft", "--json").stdout)
     assert [(p["id"], p["state"]) for p in listed] == [(1, "draft")]
 
@@ -86,19 +66,19 @@ def test_reserve_a_draft(db: Path) -> None:
     assert "L-A: reserved 3, 7 free (10 on hand, 3 reserved)" in r.stdout
     assert "C-IN: reserved 6, 4 free (10 on hand, 6 reserved)" in r.stdout
     assert r.stdout.strip().endswith("pick list 1 reserved")
-    st = _stock(db)
+    st = stock_of(db)
     for label in ONCE:
         assert st[label] == (10, 3)
     assert st["C-IN"] == (10, 6) and st["C-OUT"] == (10, 0)
-    assert _q(db, "SELECT state FROM pick_list WHERE id = 1") == [("reserved",)]
-    assert _q(db, "SELECT count(*) FROM stock_move WHERE pick_list_id = 1")[0][0] == 0
+    assert query(db, "SELECT state FROM pick_list WHERE id = 1") == [("reserved",)]
+    assert query(db, "SELECT count(*) FROM stock_move WHERE pick_list_id = 1")[0][0] == 0
     # available = on hand - reserved, as kitbin pick shows it for the next list
     again = json.loads(kb(db, "pick", "bench-5v", "--json").stdout)
     assert {ln["bin"]: ln["available"] for ln in again["lines"]}["L-A"] == 10 - 3
     # then taken as any reserved list
     r = kb(db, "picks", "done", "1")
     assert r.exit_code == 0, r.output
-    assert _stock(db)["L-A"] == (7, 0) and _stock(db)["C-IN"] == (4, 0)
+    assert stock_of(db)["L-A"] == (7, 0) and stock_of(db)["C-IN"] == (4, 0)
 
 
 def test_reserve_json(db: Path) -> None:
@@ -113,7 +93,7 @@ def test_reserve_json(db: Path) -> None:
     assert set(held) == {*ONCE, "C-IN"}
 
 
-def test_reserve_refused_when_the_bin_lost_its_free_stock(db: Path) -> None:
+def test_reserve_refused_when_the_bin_lost_its_freestock_of(db: Path) -> None:
     assert kb(db, "pick", "bench-5v", "--boards", "3", "--save").exit_code == 0
     # meanwhile 8 parts of L-A go into another build: 2 left, the draft needs 3
     assert kb(db, "stock", "L-A", "-8", "--why", "another build").exit_code == 0
@@ -122,8 +102,8 @@ def test_reserve_refused_when_the_bin_lost_its_free_stock(db: Path) -> None:
     line = _one_error(r, int(ExitCode.STOCK))
     assert "cannot reserve pick list 1: L-A has 2 free" in line and "stays a draft" in line
     assert snapshot(db) == before  # state still draft, nothing held, no move
-    assert _q(db, "SELECT state FROM pick_list WHERE id = 1") == [("draft",)]
-    assert all(held == 0 for _qty, held in _stock(db).values())
+    assert query(db, "SELECT state FROM pick_list WHERE id = 1") == [("draft",)]
+    assert all(held == 0 for _qty, held in stock_of(db).values())
 
 
 def test_reserving_twice_is_refused(db: Path) -> None:
@@ -137,14 +117,14 @@ def test_reserving_twice_is_refused(db: Path) -> None:
 
 def test_cancel_a_draft(db: Path) -> None:
     assert kb(db, "pick", "bench-5v", "--save").exit_code == 0
-    before = _stock(db)
-    moves = _q(db, "SELECT count(*) FROM stock_move")
+    before = stock_of(db)
+    moves = query(db, "SELECT count(*) FROM stock_move")
     r = kb(db, "picks", "cancel", "1")
     assert r.exit_code == 0, r.output
     assert r.stdout.strip() == "pick list 1 cancelled (a draft: no stock was held)"
-    assert _stock(db) == before
-    assert _q(db, "SELECT state FROM pick_list") == [("cancelled",)]
-    assert _q(db, "SELECT count(*) FROM stock_move") == moves  # no move
+    assert stock_of(db) == before
+    assert query(db, "SELECT state FROM pick_list") == [("cancelled",)]
+    assert query(db, "SELECT count(*) FROM stock_move") == moves  # no move
     # a cancelled draft cannot be reserved
     _one_error(kb(db, "picks", "reserve", "1"), int(ExitCode.STOCK))
 
@@ -207,11 +187,11 @@ def test_use_label_in_any_case_is_stored_with_its_bin(db: Path) -> None:
     # --use finds a bin case-insensitively; the stored line must name that bin
     args = ["--use", "divider_top=r-top", "--use", "divider_bottom=r-bot", "--save"]
     assert kb(db, "pick", "bench-5v", *args).exit_code == 0
-    rows = _q(
+    rows = query(
         db,
         "SELECT l.role, b.label FROM pick_line l JOIN bin b ON b.id = l.bin_id "
         "WHERE l.role LIKE 'divider%' ORDER BY l.role",
     )
     assert rows == [("divider_bottom", "R-BOT"), ("divider_top", "R-TOP")]
     assert kb(db, "picks", "reserve", "1").exit_code == 0
-    assert _stock(db)["R-TOP"] == (10, 1)
+    assert stock_of(db)["R-TOP"] == (10, 1)
