@@ -130,6 +130,8 @@ def test_specimen_counts(filled) -> None:
         got = matchreads.specimen_counts(s, QUANTITIES)
         rows = s.execute(select(Reading.bin_id, Reading.quantity, Reading.specimen)).all()
         some = matchreads.specimen_counts(s, QUANTITIES, [7, 14, 21])
+        # more ids than one IN list takes (10,000): the same answer
+        many = matchreads.specimen_counts(s, QUANTITIES, range(0, 70_000, 7))
     want: dict[tuple[int, str], set] = {}
     for r in rows:
         want.setdefault((r.bin_id, r.quantity), set())
@@ -137,6 +139,7 @@ def test_specimen_counts(filled) -> None:
             want[(r.bin_id, r.quantity)].add(r.specimen)
     assert {(b, q): n for b, q, n in got} == {k: len(v) for k, v in want.items()}
     assert {(b, q) for b, q, _ in some} == {k for k in want if k[0] in (7, 14, 21)}
+    assert sorted(many) == sorted(got)
 
 
 def test_a_roles_tables_are_the_rows_of_the_whole_stocks(filled) -> None:

@@ -45,6 +45,8 @@ _SOURCE_CODES = 7
 #: Most quantities (or property names) one read can ask for: their index shares a
 #: packed integer with the bin id (see :func:`reading_rows`).
 MAX_NAMES = 32
+#: Most bin ids sent as an ``IN`` list (SQLite allows 32,766 bound parameters).
+_MAX_IN_LIST = 1000
 
 
 def _fetch(session: Session, stmt: Any, fields: np.dtype) -> np.ndarray:
@@ -185,12 +187,16 @@ def specimen_counts(
         .where(Reading.quantity.in_(list(quantities)))
         .group_by(Reading.bin_id, Reading.quantity)
     )
+    keep: set[int] | None = None
     if bin_ids is not None:
-        ids = sorted({int(i) for i in bin_ids})
-        if not ids:
+        keep = {int(i) for i in bin_ids}
+        if not keep:
             return []
-        stmt = stmt.where(Reading.bin_id.in_(ids))
-    return [(int(b), str(q), int(n)) for b, q, n in session.execute(stmt)]
+        if len(keep) <= _MAX_IN_LIST:
+            stmt = stmt.where(Reading.bin_id.in_(sorted(keep)))
+        # else: every bin's counts, filtered here (a database caps bound parameters)
+    rows = session.execute(stmt)
+    return [(int(b), str(q), int(n)) for b, q, n in rows if keep is None or b in keep]
 
 
 def curve_rows(session: Session, kinds: Iterable[str]) -> list[tuple[int, dict[str, Any]]]:
