@@ -158,3 +158,13 @@ def test_a_roles_tables_are_the_rows_of_the_whole_stocks(filled) -> None:
         for q, table in cands.tables.items():
             for name in fields:
                 np.testing.assert_array_equal(getattr(table, name), getattr(whole[q], name)[rows])
+
+
+def test_bin_details_of_few_and_of_many_ids(filled) -> None:
+    with filled.transaction() as s:
+        few = matchreads.bin_details(s, [7, 14, 999])
+        # more ids than one IN list takes (the shelf asks for every bin)
+        many = matchreads.bin_details(s, range(0, 70_000, 7))
+        every = s.execute(select(Bin.id, Bin.label)).all()
+    assert sorted(few) == [7, 14] and few[14]["label"] == "B-002"
+    assert {i: d["label"] for i, d in many.items()} == {r.id: r.label for r in every}

@@ -228,29 +228,32 @@ _DETAIL_KEYS = (
 
 
 def bin_details(session: Session, ids: Iterable[int]) -> dict[int, dict[str, Any]]:
-    """Display fields of a few bins by id (keys of ``_DETAIL_KEYS``; ``kit`` is its name)."""
-    id_list = sorted({int(i) for i in ids})
-    if not id_list:
+    """Display fields of bins by id (keys of ``_DETAIL_KEYS``; ``kit`` is its name)."""
+    keep = {int(i) for i in ids}
+    if not keep:
         return {}
-    stmt = (
-        select(
-            Bin.id,
-            Bin.label,
-            Bin.kind,
-            Bin.nominal,
-            Bin.tol_minus,
-            Bin.tol_plus,
-            Bin.marking,
-            Bin.package,
-            Bin.location,
-            Kit.name,
-            Bin.qty,
-            Bin.qty_reserved,
-        )
-        .outerjoin(Kit, Kit.id == Bin.kit_id)
-        .where(Bin.id.in_(id_list))
-    )
-    return {int(r[0]): dict(zip(_DETAIL_KEYS, r, strict=True)) for r in session.execute(stmt)}
+    stmt = select(
+        Bin.id,
+        Bin.label,
+        Bin.kind,
+        Bin.nominal,
+        Bin.tol_minus,
+        Bin.tol_plus,
+        Bin.marking,
+        Bin.package,
+        Bin.location,
+        Kit.name,
+        Bin.qty,
+        Bin.qty_reserved,
+    ).outerjoin(Kit, Kit.id == Bin.kit_id)
+    if len(keep) <= _MAX_IN_LIST:
+        stmt = stmt.where(Bin.id.in_(sorted(keep)))
+    # else: every bin, filtered here (PostgreSQL takes at most 65,535 bound parameters)
+    return {
+        int(r[0]): dict(zip(_DETAIL_KEYS, r, strict=True))
+        for r in session.execute(stmt)
+        if r[0] in keep
+    }
 
 
 def bin_id_for_label(session: Session, label: str) -> int | None:
