@@ -4,20 +4,13 @@ highlighted draft (R), as ``kitbin pick --save`` and ``kitbin picks reserve`` do
 from __future__ import annotations
 
 import asyncio
-from collections.abc import Callable
+
+from pilot_steps import until as _until
 
 from kitbin.services import picking
 from kitbin.services.picking import DEMO_PLAN
 from kitbin.store import open_store
 from kitbin.tui.app import make_app
-
-
-async def _until(pilot, condition: Callable[[], bool], timeout: float = 10.0) -> None:
-    waited = 0.0
-    while not condition():
-        await pilot.pause(0.02)
-        waited += 0.02
-        assert waited < timeout, "the app did not get there in time"
 
 
 def _state(db: str, pick_id: int) -> str | None:

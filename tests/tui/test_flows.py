@@ -6,30 +6,16 @@ Database work runs in thread workers, so each step waits for its result to land.
 from __future__ import annotations
 
 import asyncio
-from collections.abc import Callable
 from pathlib import Path
+
+from pilot_steps import on_screen as _screen
+from pilot_steps import shelf_ready as _shelf_ready
+from pilot_steps import until as _until
 
 from kitbin.services import inventory
 from kitbin.store import open_store, queries
 from kitbin.tui.app import make_app
 from kitbin.tui.widgets.shelf.grid import ShelfGrid
-
-
-async def _until(pilot, condition: Callable[[], bool], timeout: float = 10.0) -> None:
-    waited = 0.0
-    while not condition():
-        await pilot.pause(0.02)
-        waited += 0.02
-        assert waited < timeout, "the app did not get there in time"
-
-
-def _screen(app, name: str) -> bool:
-    return type(app.screen).__name__ == name
-
-
-async def _shelf_ready(app, pilot) -> ShelfGrid:
-    await _until(pilot, lambda: bool(app.shelf.rows))
-    return app.shelf.query_one(ShelfGrid)
 
 
 def _demo_capture(name: str) -> str:

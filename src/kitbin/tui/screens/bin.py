@@ -48,6 +48,7 @@ class BinScreen(KitbinScreen):
         Binding("r", "record", "record"),
         Binding("a", "adjust", "stock±"),
         Binding("c", "capture", "capture"),
+        Binding("e", "edit", "edit"),
         Binding("1", "tab('evidence')", "evidence", show=False),
         Binding("2", "tab('readings')", "readings", show=False),
         Binding("3", "tab('captures')", "captures", show=False),
@@ -234,6 +235,14 @@ class BinScreen(KitbinScreen):
         from kitbin.tui.screens.capture import CaptureScreen
 
         self.app.push_screen(CaptureScreen(self.label))
+
+    def action_edit(self) -> None:
+        from kitbin.tui.screens.editbin import EditBinScreen
+
+        if self.page is None:
+            self.notify("the bin is still being read", severity="warning")
+            return
+        self.app.push_screen(EditBinScreen(self.page))
 
     def inventory_changed(self, label: str | None) -> None:
         """Reload when this bin (or any, for None) changed."""

@@ -24,8 +24,10 @@ def _screens() -> list[tuple[str, type]]:
     from kitbin.tui.app import KitbinApp
     from kitbin.tui.screens.bin import BinScreen
     from kitbin.tui.screens.capture import CaptureScreen
+    from kitbin.tui.screens.editbin import EditBinScreen
     from kitbin.tui.screens.kits import KitsScreen
     from kitbin.tui.screens.newbin import NewBinScreen
+    from kitbin.tui.screens.newkit import NewKitScreen
     from kitbin.tui.screens.plans import ExportScreen, NewPlanScreen, PlanScreen
     from kitbin.tui.screens.record import RecordScreen
     from kitbin.tui.screens.shelf import ShelfScreen
@@ -37,8 +39,10 @@ def _screens() -> list[tuple[str, type]]:
         ("shelf", ShelfScreen),
         ("shelf list", ShelfGrid),
         ("kits", KitsScreen),
+        ("new kit", NewKitScreen),
         ("new bin", NewBinScreen),
         ("bin", BinScreen),
+        ("edit bin", EditBinScreen),
         ("record readings", RecordScreen),
         ("stock ±", StockScreen),
         ("capture", CaptureScreen),

@@ -23,7 +23,7 @@ BIN_FIELDS: tuple[tuple[str, str, str], ...] = (
     ("nominal", "nominal", "e.g. 10uH (optional when the marking says it)"),
     ("tolerance", "tolerance", "e.g. 20% (optional)"),
     ("location", "location", "e.g. cabinet A, drawer 3"),
-    ("kit", "kit", "name of an existing kit (optional)"),
+    ("kit", "kit", "name of an existing kit (optional; new ones: k, then n)"),
     ("qty", "count", "parts in the bin now, e.g. 12"),
 )
 
@@ -69,7 +69,7 @@ class NewBinScreen(KitbinModal):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Static("New bin (more with `kitbin bin edit`)", classes="dialog-title")
+            yield Static("New bin (more later: e in the bin view)", classes="dialog-title")
             for key, label, hint in BIN_FIELDS:
                 with Horizontal(classes="field-row"):
                     yield Label(label)

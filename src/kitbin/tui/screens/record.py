@@ -21,6 +21,7 @@ from kitbin.tui.widgets.record.check import (
     check_value,
     reading_items,
 )
+from kitbin.tui.widgets.record.show import show_check
 
 #: Reading rows offered first, per kind of bin (more with ctrl+n).
 FIRST_ROWS: dict[str, tuple[str, ...]] = {
@@ -31,14 +32,6 @@ FIRST_ROWS: dict[str, tuple[str, ...]] = {
     "controller": ("vref", "fsw"),
 }
 MAX_ROWS = 6
-
-
-def show_check(widget: Static, check: Check) -> None:
-    """Draw a field's check line: green when read, red with the reason when not."""
-    widget.set_class(check.ok is True, "check-ok")
-    widget.set_class(check.ok is False, "check-bad")
-    mark = {True: "✓ ", False: "✗ ", None: "· "}[check.ok]
-    widget.update(_escape(mark + check.message) if check.message else "")
 
 
 class RecordScreen(KitbinModal):

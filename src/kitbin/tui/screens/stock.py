@@ -13,8 +13,8 @@ from textual.widgets import Footer, Input, Label, Static
 from kitbin.tui.markup import plain
 from kitbin.tui.messages import InventoryChanged, StockAdjusted
 from kitbin.tui.screens.base import KitbinModal
-from kitbin.tui.screens.record import show_check
 from kitbin.tui.widgets.record.check import check_delta
+from kitbin.tui.widgets.record.show import show_check
 
 
 class StockScreen(KitbinModal):

@@ -163,6 +163,13 @@ def capture_cells(c: Mapping[str, Any]) -> tuple[str, ...]:
     return (f"#{c['id']}", c["kind"], c.get("file_name") or "", key, when_text(c.get("created_at")))
 
 
+def tolerance_text(minus: float, plus: float) -> str:
+    """A tolerance from its (minus, plus) fractions: ``±20 %`` or ``-20/+80 %``."""
+    if minus == plus:
+        return f"±{minus * 100:g} %"
+    return f"-{minus * 100:g}/+{plus * 100:g} %"
+
+
 def head_lines(page: Mapping[str, Any]) -> list[str]:
     """The bin's description: value, marking and what it decodes to, stock, place."""
     kind = page["kind"]
@@ -172,8 +179,7 @@ def head_lines(page: Mapping[str, Any]) -> list[str]:
         first += f" · nominal {format_quantity(page['nominal'], QUANTITIES[nq].dimension)}"
         if page.get("tol_minus") is not None:
             tm, tp = page["tol_minus"], page.get("tol_plus", page["tol_minus"])
-            tol = f"±{tm * 100:g} %" if tm == tp else f"-{tm * 100:g}/+{tp * 100:g} %"
-            first += f" {tol}"
+            first += f" {tolerance_text(tm, tp)}"
     if page.get("package"):
         first += f" · {page['package']}"
     lines = [first]

@@ -13,7 +13,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from kitbin.errors import QuantityError
-from kitbin.quantities import QUANTITIES, quantity_kind
+from kitbin.quantities import NOMINAL_QUANTITY, QUANTITIES, quantity_kind
 from kitbin.units import DIMENSIONS, format_quantity, parse_quantity
 
 #: Quantities the matcher derives for a candidate; they are never recorded.
@@ -135,3 +135,71 @@ def reading_items(pairs: Sequence[tuple[str, str]]) -> tuple[list[str], list[str
     if not items and not problems:
         problems.append("nothing to record: give a quantity and a value")
     return items, problems
+
+
+# -- a bin's description (the edit form) -------------------------------------------
+
+
+def check_nominal(kind: str, text: str) -> Check:
+    """A bin's nominal value in the unit of its kind: ``10uH`` on an inductor, ``4k7``
+    on a resistor; ``10uF`` on an inductor is refused."""
+    raw = text.strip()
+    if not raw:
+        return Check(None)
+    quantity = NOMINAL_QUANTITY.get(kind)
+    if quantity is None:
+        return Check(False, f"a {kind} bin has no nominal value (give its properties)")
+    if raw.startswith(("<", ">")):
+        return Check(False, f"nominal '{raw}': one value, no bound")
+    checked = check_value(quantity, raw)
+    return Check(checked.ok, checked.message, raw if checked.ok else "")
+
+
+def check_tolerance(text: str) -> Check:
+    """A tolerance: ``20%``, ``±5%``, ``-20%/+80%``."""
+    raw = text.strip()
+    if not raw:
+        return Check(None)
+    from kitbin.services.inputs import parse_tolerance
+
+    try:
+        minus, plus = parse_tolerance(raw)
+    except QuantityError as error:
+        return Check(False, error.msg)
+    from kitbin.tui.widgets.bin.text import tolerance_text
+
+    return Check(True, tolerance_text(minus, plus), raw)
+
+
+def check_marking(kind: str, text: str) -> Check:
+    """A marking as printed, decoded for the bin's kind (``4k7``, ``brown black red``)."""
+    raw = text.strip()
+    if not raw:
+        return Check(None)
+    from kitbin.errors import KitbinError
+    from kitbin.services.inventory import decode_marking
+
+    try:
+        decoded = decode_marking(kind, raw)
+    except KitbinError as error:
+        return Check(False, error.msg)
+    if decoded is None:
+        return Check(True, f"kept as printed (a {kind} marking carries no value)", raw)
+    return Check(True, decoded.describe(), raw)
+
+
+def check_properties(text: str) -> Check:
+    """Bin properties ``vrrm=40V if_avg=1A`` (space-separated ``NAME=VALUE`` items)."""
+    items = text.split()
+    if not items:
+        return Check(None)
+    from kitbin.services.inputs import parse_property
+
+    shown = []
+    for item in items:
+        try:
+            name, value = parse_property(item)
+        except QuantityError as error:
+            return Check(False, error.msg)
+        shown.append(f"{name} {format_quantity(value, QUANTITIES[name].dimension)}")
+    return Check(True, " · ".join(shown), " ".join(items))
