@@ -2,18 +2,17 @@
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from typing import Any, ClassVar
 
 from textual import on, work
-from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, Vertical
 from textual.message import Message
-from textual.widgets import Footer, Input, Label, Static
+from textual.widget import Widget
+from textual.widgets import Input, Static
 
-from kitbin.tui.markup import plain
 from kitbin.tui.messages import InventoryChanged
-from kitbin.tui.screens.base import KitbinModal
+from kitbin.tui.screens.form import FormModal
 from kitbin.tui.widgets.bin.edit import EDIT_FIELDS, edit_arguments, field_check, form_values
 from kitbin.tui.widgets.record.show import show_check
 
@@ -26,13 +25,13 @@ class BinEdited(Message):
         self.data = data
 
 
-class EditBinScreen(KitbinModal):
+class EditBinScreen(FormModal):
     """A bin's description, filled in; only the fields you change are written."""
 
-    BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("ctrl+s", "save", "save", priority=True),
-        Binding("escape", "cancel", "cancel"),
-    ]
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("ctrl+s", "save", "save", priority=True)]
+    FIELDS = EDIT_FIELDS
+    PREFIX = "editbin"
+    CANCELLED = False
 
     def __init__(self, page: dict[str, Any]) -> None:
         super().__init__()
@@ -41,29 +40,19 @@ class EditBinScreen(KitbinModal):
         self.start = form_values(page)
         self.before: dict[str, str] = {}
 
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog"):
-            yield Static(
-                plain(f"Edit {self.label} ({self.kind}; label and kind: `kitbin bin edit`)"),
-                classes="dialog-title",
-            )
-            for key, label, hint in EDIT_FIELDS:
-                with Horizontal(classes="field-row"):
-                    yield Label(label)
-                    yield Input(
-                        value=self.start[key],
-                        placeholder=hint,
-                        id=f"editbin-{key}",
-                        classes="field-input",
-                    )
-                if field_check(self.kind, key, "") is not None:
-                    yield Static("", id=f"editbin-{key}-check", classes="check")
-            yield Static("", id="editbin-problems", classes="check-bad")
-        yield Footer(compact=True)
+    def form_title(self) -> str:
+        return f"Edit {self.label} ({self.kind}; label and kind: `kitbin bin edit`)"
+
+    def start_value(self, key: str) -> str:
+        return self.start[key]
+
+    def after_field(self, key: str) -> Iterable[Widget]:
+        if field_check(self.kind, key, "") is not None:
+            yield Static("", id=f"editbin-{key}-check", classes="check")
 
     def on_mount(self) -> None:
         # what the inputs hold at the start is what "unchanged" means
-        self.before = self._values()
+        self.before = self.values()
         for key, text in self.before.items():
             self._show(key, text)
         self.query_one("#editbin-location", Input).focus()
@@ -73,24 +62,15 @@ class EditBinScreen(KitbinModal):
         if check is not None:
             show_check(self.query_one(f"#editbin-{key}-check", Static), check)
 
-    def _values(self) -> dict[str, str]:
-        return {k: self.query_one(f"#editbin-{k}", Input).value for k, *_ in EDIT_FIELDS}
-
     @on(Input.Changed)
     def _changed(self, event: Input.Changed) -> None:
         self._show((event.input.id or "").removeprefix("editbin-"), event.value)
-        self.query_one("#editbin-problems", Static).update("")
-
-    @on(Input.Submitted)
-    def _next(self) -> None:
-        self.focus_next()
+        self.clear_problems()
 
     def action_save(self) -> None:
-        args, problems = edit_arguments(self.kind, self.before, self._values())
+        args, problems = edit_arguments(self.kind, self.before, self.values())
         if problems:
-            text = "nothing written: " + "; ".join(problems)
-            self.query_one("#editbin-problems", Static).update(plain(text))
-            self.notify(text, severity="error")
+            self.refuse("; ".join(problems))
             return
         self.edit(self.app.store, args)
 
@@ -106,12 +86,3 @@ class EditBinScreen(KitbinModal):
         self.notify(f"saved bin {message.data['label']}")
         self.app.post_message(InventoryChanged(message.data["label"]))
         self.dismiss(True)
-
-    def worker_failed(self, worker: Any) -> None:
-        from kitbin.tui.app import error_line
-
-        line = "nothing written: " + error_line(worker.error)
-        self.query_one("#editbin-problems", Static).update(plain(line))
-
-    def action_cancel(self) -> None:
-        self.dismiss(False)

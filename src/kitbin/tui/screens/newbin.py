@@ -5,15 +5,11 @@ from __future__ import annotations
 from typing import Any, ClassVar
 
 from textual import on, work
-from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, Vertical
 from textual.message import Message
-from textual.widgets import Footer, Input, Label, Static
 
-from kitbin.tui.markup import plain
 from kitbin.tui.messages import InventoryChanged
-from kitbin.tui.screens.base import KitbinModal
+from kitbin.tui.screens.form import FormModal
 
 #: (field, label, hint)
 BIN_FIELDS: tuple[tuple[str, str, str], ...] = (
@@ -59,38 +55,20 @@ def bin_arguments(values: dict[str, str]) -> tuple[dict[str, Any] | None, list[s
     return args, []
 
 
-class NewBinScreen(KitbinModal):
+class NewBinScreen(FormModal):
     """A new bin; its starting count is logged as its first stock move."""
 
-    BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("ctrl+s", "save", "add bin", priority=True),
-        Binding("escape", "cancel", "cancel"),
-    ]
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("ctrl+s", "save", "add bin", priority=True)]
+    FIELDS = BIN_FIELDS
+    PREFIX = "newbin"
 
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog"):
-            yield Static("New bin (more later: e in the bin view)", classes="dialog-title")
-            for key, label, hint in BIN_FIELDS:
-                with Horizontal(classes="field-row"):
-                    yield Label(label)
-                    yield Input(placeholder=hint, id=f"newbin-{key}", classes="field-input")
-            yield Static("", id="newbin-problems", classes="check-bad")
-        yield Footer(compact=True)
-
-    def on_mount(self) -> None:
-        self.query_one("#newbin-label", Input).focus()
-
-    @on(Input.Submitted)
-    def _next(self) -> None:
-        self.focus_next()
+    def form_title(self) -> str:
+        return "New bin (more later: e in the bin view)"
 
     def action_save(self) -> None:
-        values = {k: self.query_one(f"#newbin-{k}", Input).value for k, *_ in BIN_FIELDS}
-        args, problems = bin_arguments(values)
+        args, problems = bin_arguments(self.values())
         if args is None:
-            text = "nothing written: " + "; ".join(problems)
-            self.query_one("#newbin-problems", Static).update(plain(text))
-            self.notify(text, severity="error")
+            self.refuse("; ".join(problems))
             return
         self.add(self.app.store, args)
 
@@ -108,12 +86,3 @@ class NewBinScreen(KitbinModal):
         self.notify(f"added bin {d['label']} ({d['kind']}, {d['qty']} parts)")
         self.app.post_message(InventoryChanged(d["label"]))
         self.dismiss(d["label"])
-
-    def worker_failed(self, worker: Any) -> None:
-        from kitbin.tui.app import error_line
-
-        line = "nothing written: " + error_line(worker.error)
-        self.query_one("#newbin-problems", Static).update(plain(line))
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)

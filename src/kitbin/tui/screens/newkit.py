@@ -5,15 +5,12 @@ from __future__ import annotations
 from typing import Any, ClassVar
 
 from textual import on, work
-from textual.app import ComposeResult
 from textual.binding import Binding, BindingType
-from textual.containers import Horizontal, Vertical
 from textual.message import Message
-from textual.widgets import Footer, Input, Label, Static
+from textual.widgets import Input
 
-from kitbin.tui.markup import plain
 from kitbin.tui.messages import InventoryChanged
-from kitbin.tui.screens.base import KitbinModal
+from kitbin.tui.screens.form import FormModal
 
 #: (field, label, hint): the arguments of :func:`kitbin.services.inventory.add_kit`.
 KIT_FIELDS: tuple[tuple[str, str, str], ...] = (
@@ -32,41 +29,24 @@ class KitAdded(Message):
         self.data = data
 
 
-class NewKitScreen(KitbinModal):
+class NewKitScreen(FormModal):
     """A new kit; bins join it with their kit field."""
 
-    BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("ctrl+s", "save", "add kit", priority=True),
-        Binding("escape", "cancel", "cancel"),
-    ]
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("ctrl+s", "save", "add kit", priority=True)]
+    FIELDS = KIT_FIELDS
+    PREFIX = "newkit"
 
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog"):
-            yield Static("New kit", classes="dialog-title")
-            for key, label, hint in KIT_FIELDS:
-                with Horizontal(classes="field-row"):
-                    yield Label(label)
-                    yield Input(placeholder=hint, id=f"newkit-{key}", classes="field-input")
-            yield Static("", id="newkit-problems", classes="check-bad")
-        yield Footer(compact=True)
-
-    def on_mount(self) -> None:
-        self.query_one("#newkit-name", Input).focus()
+    def form_title(self) -> str:
+        return "New kit"
 
     @on(Input.Changed)
     def _changed(self) -> None:
-        self.query_one("#newkit-problems", Static).update("")
-
-    @on(Input.Submitted)
-    def _next(self) -> None:
-        self.focus_next()
+        self.clear_problems()
 
     def action_save(self) -> None:
-        values = {k: self.query_one(f"#newkit-{k}", Input).value for k, *_ in KIT_FIELDS}
+        values = self.values()
         if not values["name"].strip():
-            text = "nothing written: give the kit a name"
-            self.query_one("#newkit-problems", Static).update(plain(text))
-            self.notify(text, severity="error")
+            self.refuse("give the kit a name")
             return
         self.add(self.app.store, values)
 
@@ -82,12 +62,3 @@ class NewKitScreen(KitbinModal):
         self.notify(f"added kit {message.data['name']}")
         self.app.post_message(InventoryChanged())
         self.dismiss(message.data["name"])
-
-    def worker_failed(self, worker: Any) -> None:
-        from kitbin.tui.app import error_line
-
-        line = "nothing written: " + error_line(worker.error)
-        self.query_one("#newkit-problems", Static).update(plain(line))
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)

@@ -18,6 +18,7 @@ from kitbin.tui.markup import cells
 from kitbin.tui.markup import plain as _escape
 from kitbin.tui.messages import InventoryChanged
 from kitbin.tui.screens.base import KitbinModal, KitbinScreen
+from kitbin.tui.screens.form import FormModal
 from kitbin.tui.widgets.plan.text import (
     CORNER_COLUMNS,
     check_lines,
@@ -521,38 +522,21 @@ PLAN_FIELDS: tuple[tuple[str, str, str], ...] = (
 )
 
 
-class NewPlanScreen(KitbinModal):
+class NewPlanScreen(FormModal):
     """A new plan: the few numbers a converter needs (the rest take their defaults)."""
 
-    BINDINGS: ClassVar[list[BindingType]] = [
-        Binding("ctrl+s", "save", "save plan", priority=True),
-        Binding("escape", "cancel", "cancel"),
-    ]
+    BINDINGS: ClassVar[list[BindingType]] = [Binding("ctrl+s", "save", "save plan", priority=True)]
+    FIELDS = PLAN_FIELDS
+    PREFIX = "plan-field"
+    REFUSED = "nothing saved"
 
-    def compose(self) -> ComposeResult:
-        with Vertical(classes="dialog"):
-            yield Static("New plan (other settings: `kitbin plan edit`)", classes="dialog-title")
-            for key, label, hint in PLAN_FIELDS:
-                with Horizontal(classes="field-row"):
-                    yield Label(label)
-                    yield Input(placeholder=hint, id=_field_id(key), classes="field-input")
-            yield Static("", id="plan-problems", classes="check-bad")
-        yield Footer(compact=True)
-
-    def on_mount(self) -> None:
-        self.query_one(f"#{_field_id('name')}", Input).focus()
-
-    @on(Input.Submitted)
-    def _next(self) -> None:
-        self.focus_next()
+    def form_title(self) -> str:
+        return "New plan (other settings: `kitbin plan edit`)"
 
     def action_save(self) -> None:
-        values = {
-            k: self.query_one(f"#{_field_id(k)}", Input).value.strip() for k, *_ in PLAN_FIELDS
-        }
+        values = {k: v.strip() for k, v in self.values().items()}
         if not values["name"]:
-            self.query_one("#plan-problems", Static).update("give the plan a name")
-            self.notify("give the plan a name", severity="error")
+            self.refuse("give the plan a name")
             return
         self.create(self.app.store, values)
 
@@ -572,17 +556,6 @@ class NewPlanScreen(KitbinModal):
     def _created(self, message: PlanCreated) -> None:
         self.notify(f"saved plan {message.plan['name']} ({message.plan['topology']})")
         self.dismiss(message.plan)
-
-    def worker_failed(self, worker: Any) -> None:
-        error = worker.error
-        from kitbin.tui.app import error_line
-
-        self.query_one("#plan-problems", Static).update(
-            _escape("nothing saved: " + error_line(error))
-        )
-
-    def action_cancel(self) -> None:
-        self.dismiss(None)
 
 
 class ExportScreen(KitbinModal):
@@ -647,7 +620,3 @@ class ExportScreen(KitbinModal):
 
     def action_cancel(self) -> None:
         self.dismiss(None)
-
-
-def _field_id(key: str) -> str:
-    return "plan-field-" + key.lstrip("-")
