@@ -1,75 +1,9 @@
 """``kitbin plan new|show|list|edit``: saved converter designs."""
 
-import functools
-import inspect
-from collections.abc import Callable
-from typing import Any
-
 import typer
 
 from kitbin.cli.common import print_json, state
-
-_SPEC_HELP = {
-    "--topology": "buck, boost or invert.",
-    "--vin": "Input range, e.g. 11..15V.",
-    "--vout": "Output voltage (magnitude for invert).",
-    "--iout": "Full load.",
-    "--iout-min": "Light load (default 10 % of --iout).",
-    "--fsw": "Switching frequency.",
-    "--vf": "Diode forward drop (default 0.4V).",
-    "--rsw": "Switch on-resistance.",
-    "--sync": "Synchronous rectifier with this low-side resistance.",
-    "--rectifier": "diode or sync.",
-    "--ripple": "Target r = ΔI/IL (default 0.3).",
-    "--vout-ripple": "Allowed output ripple p-p.",
-    "--vin-ripple": "Allowed input ripple p-p.",
-    "--ambient": "Ambient temperature.",
-    "--rise-max": "Allowed inductor rise.",
-    "--isat-drop": "Isat criterion, 10/20/30 %.",
-    "--isat-margin": "Isat as a multiple of the peak.",
-    "--vout-tol": "Allowed output error.",
-    "--ilim": "Controller current limit.",
-    "--ton-min": "Controller minimum on-time.",
-    "--d-max": "Controller maximum duty.",
-    "--vref": "Controller reference voltage.",
-    "--vref-tol": "Reference tolerance.",
-    "--ifb": "Feedback-pin current.",
-    "--ilim-gain": "Current-limit set gain (V): Ilim = gain / Rset.",
-    "--ilim-target": "Current limit wanted from the set resistor.",
-    "--rbottom": "Range for the divider's bottom resistor, e.g. 4.7k..47k (default 1k..100k).",
-}
-
-
-def _param_name(option: str) -> str:
-    return option[2:].replace("-", "_")
-
-
-def _spec_options(command: Callable[..., None]) -> Callable[..., None]:
-    """Give a command one ``--OPTION TEXT`` per spec field of :data:`_SPEC_HELP`.
-
-    Typer reads options from a function's signature, so the spec options are added
-    to the signature here once instead of being written out in every command; the
-    command receives them as ``spec``, a dict of option name -> text (None if not given).
-    """
-    own = [p for p in inspect.signature(command).parameters.values() if p.name != "spec"]
-    added = [
-        inspect.Parameter(
-            _param_name(option),
-            inspect.Parameter.KEYWORD_ONLY,
-            default=typer.Option(None, option, help=help_text),
-            annotation=str | None,
-        )
-        for option, help_text in _SPEC_HELP.items()
-    ]
-
-    @functools.wraps(command)
-    def with_spec(**kwargs: Any) -> None:
-        spec = {option: kwargs.pop(_param_name(option)) for option in _SPEC_HELP}
-        command(spec=spec, **kwargs)
-
-    with_spec.__signature__ = inspect.Signature([*own, *added])  # type: ignore[attr-defined]
-    with_spec.__annotations__ = {p.name: p.annotation for p in [*own, *added]}
-    return with_spec
+from kitbin.cli.specopts import spec_options
 
 
 def register(app: typer.Typer) -> None:
@@ -77,7 +11,7 @@ def register(app: typer.Typer) -> None:
     plan_app = typer.Typer(help="Plans: saved converter designs.", no_args_is_help=True)
 
     @plan_app.command("new")
-    @_spec_options
+    @spec_options()
     def new(
         ctx: typer.Context,
         name: str = typer.Argument(..., help="Name of the plan."),
@@ -108,7 +42,7 @@ def register(app: typer.Typer) -> None:
             typer.echo(f"saved plan {plan['name']} ({plan['topology']})")
 
     @plan_app.command("edit")
-    @_spec_options
+    @spec_options()
     def edit(
         ctx: typer.Context,
         name: str = typer.Argument(..., help="Name of the plan."),

@@ -5,6 +5,7 @@ from typing import Any
 import typer
 
 from kitbin.cli.common import print_json
+from kitbin.cli.specopts import spec_options
 
 CAUTION = (
     "caution: inductors and diodes run hot, capacitors store energy; the arithmetic leaves "
@@ -115,12 +116,9 @@ def register(app: typer.Typer) -> None:
     """Add ``kitbin stage`` to the root app."""
 
     @app.command("stage")
+    @spec_options(exclude=("--topology",), required=("--vin", "--vout", "--iout", "--fsw"))
     def stage(
         topology: str = typer.Argument(..., help="buck, boost or invert (inverting buck-boost)."),
-        vin: str = typer.Option(..., "--vin", help="Input range, e.g. 11..15V (or one value)."),
-        vout: str = typer.Option(..., "--vout", help="Output voltage (magnitude for invert)."),
-        iout: str = typer.Option(..., "--iout", help="Full load, e.g. 2.4A."),
-        fsw: str = typer.Option(..., "--fsw", help="Switching frequency, e.g. 500kHz."),
         l_text: str | None = typer.Option(
             None, "--l", help="Inductance; omitted: the smallest L for the ripple target."
         ),
@@ -129,46 +127,8 @@ def register(app: typer.Typer) -> None:
         esr: str | None = typer.Option(None, "--esr", help="Output capacitor ESR."),
         cin: str | None = typer.Option(None, "--cin", help="Input capacitance (effective)."),
         esr_in: str | None = typer.Option(None, "--esr-in", help="Input capacitor ESR."),
-        iout_min: str | None = typer.Option(
-            None, "--iout-min", help="Light load (default 10 % of --iout)."
-        ),
-        vf: str | None = typer.Option(None, "--vf", help="Diode forward drop (default 0.4V)."),
-        rsw: str | None = typer.Option(None, "--rsw", help="Switch on-resistance (default 0)."),
-        sync: str | None = typer.Option(
-            None, "--sync", help="Synchronous rectifier with this low-side resistance, e.g. 30mohm."
-        ),
-        ripple: str | None = typer.Option(
-            None, "--ripple", help="Target r = ΔI/IL at full load (default 0.3)."
-        ),
-        vout_ripple: str | None = typer.Option(
-            None, "--vout-ripple", help="Allowed output ripple p-p (default 1 % of Vout)."
-        ),
-        vin_ripple: str | None = typer.Option(
-            None, "--vin-ripple", help="Allowed input ripple p-p (default 2 % of Vin,min)."
-        ),
-        ambient: str | None = typer.Option(None, "--ambient", help="Ambient (default 25 °C)."),
-        rise_max: str | None = typer.Option(
-            None, "--rise-max", help="Allowed inductor rise (default 40K)."
-        ),
-        isat_drop: str | None = typer.Option(
-            None, "--isat-drop", help="Isat criterion: 10, 20 or 30 % drop (default 20)."
-        ),
-        isat_margin: str | None = typer.Option(
-            None, "--isat-margin", help="Isat as a multiple of the peak (default 1.25)."
-        ),
-        vout_tol: str | None = typer.Option(
-            None, "--vout-tol", help="Allowed output error (default 3%)."
-        ),
-        ilim: str | None = typer.Option(None, "--ilim", help="Controller current limit."),
-        ton_min: str | None = typer.Option(None, "--ton-min", help="Controller minimum on-time."),
-        d_max: str | None = typer.Option(None, "--d-max", help="Controller maximum duty."),
-        vref: str | None = typer.Option(None, "--vref", help="Controller reference voltage."),
-        vref_tol: str | None = typer.Option(None, "--vref-tol", help="Reference tolerance."),
-        ifb: str | None = typer.Option(None, "--ifb", help="Feedback-pin current."),
-        ilim_gain: str | None = typer.Option(
-            None, "--ilim-gain", help="Current-limit set gain: Ilim = gain / Rset (V)."
-        ),
         as_json: bool = typer.Option(False, "--json", help="Print corners and demands as JSON."),
+        spec: dict[str, str | None] | None = None,
     ) -> None:
         """Operating corners and part demands of a power stage (a calculator; no database).
 
@@ -180,50 +140,23 @@ def register(app: typer.Typer) -> None:
         from kitbin.services.plans import build_spec, parse_spec_texts
         from kitbin.stage.report import stage_report
 
-        fields = parse_spec_texts(
-            {
-                "--topology": topology,
-                "--vin": vin,
-                "--vout": vout,
-                "--iout": iout,
-                "--fsw": fsw,
-                "--iout-min": iout_min,
-                "--vf": vf,
-                "--rsw": rsw,
-                "--sync": sync,
-                "--ripple": ripple,
-                "--vout-ripple": vout_ripple,
-                "--vin-ripple": vin_ripple,
-                "--ambient": ambient,
-                "--rise-max": rise_max,
-                "--isat-drop": isat_drop,
-                "--isat-margin": isat_margin,
-                "--vout-tol": vout_tol,
-                "--ilim": ilim,
-                "--ton-min": ton_min,
-                "--d-max": d_max,
-                "--vref": vref,
-                "--vref-tol": vref_tol,
-                "--ifb": ifb,
-                "--ilim-gain": ilim_gain,
-            }
-        )
-        spec = build_spec({}, fields)
+        fields = parse_spec_texts({"--topology": topology, **(spec or {})})
+        stage_spec = build_spec({}, fields)
         parts = _parts(l_text, dcr, cout, esr, cin, esr_in)
-        report = stage_report(spec, **parts)
+        report = stage_report(stage_spec, **parts)
         if report["inductance_source"] == "l_min":
             from kitbin.units import format_quantity
 
             typer.echo(
                 f"note: no --l given: using L_min = {format_quantity(report['l_min_H'], 'H')} "
-                f"from the ripple target r = {spec.ripple_ratio:g} "
+                f"from the ripple target r = {stage_spec.ripple_ratio:g} "
                 f"(worst at {format_quantity(report['l_min_vin_V'], 'V')} input)",
                 err=True,
             )
         if as_json:
             print_json(report)
         else:
-            print_report(report, f"{spec.topology} stage")
+            print_report(report, f"{stage_spec.topology} stage")
         typer.echo(CAUTION, err=True)
 
 
