@@ -88,3 +88,36 @@ def test_bad_input_gives_one_error_line(args: list[str], words: str) -> None:
     lines = [ln for ln in r.stderr.splitlines() if ln.strip()]
     assert len(lines) == 1 and lines[0].startswith("kitbin: error:") and words in lines[0], lines
     assert "Traceback" not in r.output
+
+
+def test_stage_and_plans_take_the_same_spec_options() -> None:
+    # one declaration (kitbin.cli.specopts): a spec option of `plan new` is one of
+    # `stage` too, with the same help, and only the converter's basics are required
+    import typer.main
+
+    root = typer.main.get_command(app)
+    stage = root.commands["stage"]  # type: ignore[attr-defined]
+    new = root.commands["plan"].commands["new"]  # type: ignore[attr-defined]
+
+    def spec_options(cmd) -> dict[str, object]:
+        return {p.opts[0]: p for p in cmd.params if p.opts and p.opts[0].startswith("--")}
+
+    from kitbin.cli.specopts import SPEC_HELP
+
+    on_stage, on_new = spec_options(stage), spec_options(new)
+    for option in SPEC_HELP:
+        assert option in on_new and on_new[option].help == SPEC_HELP[option]
+        if option != "--topology":  # the stage's topology is its argument
+            assert on_stage[option].help == SPEC_HELP[option]
+    required = {o for o, p in on_stage.items() if p.required}
+    assert required == {"--vin", "--vout", "--iout", "--fsw"}
+    assert not any(p.required for p in on_new.values())
+
+
+def test_stage_takes_a_set_current_limit_target() -> None:
+    # a controller with a resistor-set limit: Rset = ilim_gain / Ilim (the window is
+    # Ilim to 1.1 Ilim, see docs/power-stage.md): with 100 kV and 2 A, 45.5k..50k
+    r = run(*BASE, "--ilim-gain", "100kV", "--ilim-target", "2A", "--json")
+    assert r.exit_code == 0, r.output
+    (low, high) = json.loads(r.stdout)["demands"]["set_resistor"]["constraints"]
+    assert low["limit"] == pytest.approx(100e3 / 2.2) and high["limit"] == pytest.approx(50e3)
