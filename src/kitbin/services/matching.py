@@ -71,16 +71,30 @@ class RawEvidence:
     tol_plus: np.ndarray
     nominal_quantity: np.ndarray
 
+    @functools.cached_property
+    def _readings_of(self) -> dict[int, np.ndarray]:
+        """Reading indices by quantity index, in reading order."""
+        return _indices_by_code(self.reading_quantity)
+
+    @functools.cached_property
+    def _properties_of(self) -> dict[int, np.ndarray]:
+        """Property indices by name index, in property-id order."""
+        return _indices_by_code(self.prop_name)
+
     def tables(self, rows: np.ndarray, quantities: Iterable[str]) -> dict[str, EvidenceTable]:
         """Evidence tables of ``quantities`` for the bins at ``rows`` (ascending), row
         ``k`` of each table being bin ``rows[k]``."""
-        n_all = self.nominal.size
-        where = np.full(n_all, -1, dtype=np.int64)
+        where = np.full(self.nominal.size, -1, dtype=np.int64)
         where[rows] = np.arange(rows.size)
-        r_at = where[self.reading_row]
-        r_in = r_at >= 0
-        p_at = where[self.prop_row]
-        p_in = p_at >= 0
+        none = np.empty(0, dtype=np.int64)
+
+        def of(index: dict[int, np.ndarray], code: int, row_of: np.ndarray):
+            """(indices, rows in the table) of the entries of ``code`` on these bins."""
+            at = index.get(code, none)
+            table_row = where[row_of[at]]
+            keep = table_row >= 0
+            return at[keep], table_row[keep]
+
         nom, tm, tp = self.nominal[rows], self.tol_minus[rows], self.tol_plus[rows]
         nominal_q = self.nominal_quantity[rows]
         out: dict[str, EvidenceTable] = {}
@@ -88,32 +102,40 @@ class RawEvidence:
             if q not in self.quantities:
                 continue
             qi = self.quantities.index(q)
-            rm = r_in & (self.reading_quantity == qi)
-            pm = p_in & (self.prop_name == qi)
-            prop_tol = np.zeros(int(pm.sum()))
+            r_idx, r_row = of(self._readings_of, qi, self.reading_row)
+            p_idx, p_row = of(self._properties_of, qi, self.prop_row)
+            prop_tol = np.zeros(p_idx.size)
             tol_name = f"{q}_tol"
-            if tol_name in self.names and pm.any():
-                tmask = p_in & (self.prop_name == self.names.index(tol_name))
-                if tmask.any():
+            if tol_name in self.names and p_idx.size:
+                t_idx, t_row = of(self._properties_of, self.names.index(tol_name), self.prop_row)
+                if t_idx.size:
                     tol_by_row = np.zeros(rows.size)
-                    tol_by_row[p_at[tmask]] = self.prop_value[tmask]
-                    prop_tol = tol_by_row[p_at[pm]]
+                    tol_by_row[t_row] = self.prop_value[t_idx]
+                    prop_tol = tol_by_row[p_row]
             has_nominal = nominal_q == qi
             out[q] = evidence_table(
                 q,
                 rows.size,
-                reading_row=r_at[rm],
-                reading_value=self.reading_value[rm],
-                reading_bound=self.reading_bound[rm],
+                reading_row=r_row,
+                reading_value=self.reading_value[r_idx],
+                reading_bound=self.reading_bound[r_idx],
                 nominal=np.where(has_nominal, nom, np.nan) if has_nominal.any() else None,
                 tol_minus=tm,
                 tol_plus=tp,
-                prop_row=p_at[pm],
-                prop_value=self.prop_value[pm],
-                prop_grade=self.prop_grade[pm],
+                prop_row=p_row,
+                prop_value=self.prop_value[p_idx],
+                prop_grade=self.prop_grade[p_idx],
                 prop_tol=prop_tol,
             )
         return out
+
+
+def _indices_by_code(codes: np.ndarray) -> dict[int, np.ndarray]:
+    """Positions of each value of a small-integer array, each in ascending order."""
+    order = np.argsort(codes, kind="stable")
+    values, starts = np.unique(codes[order], return_index=True)
+    ends = [*starts[1:], order.size]
+    return {int(v): order[s:e] for v, s, e in zip(values, starts, ends, strict=True)}
 
 
 @dataclass
