@@ -132,6 +132,8 @@ class RawEvidence:
 
 def _indices_by_code(codes: np.ndarray) -> dict[int, np.ndarray]:
     """Positions of each value of a small-integer array, each in ascending order."""
+    if not codes.size:
+        return {}
     order = np.argsort(codes, kind="stable")
     values, starts = np.unique(codes[order], return_index=True)
     ends = [*starts[1:], order.size]
