@@ -443,6 +443,20 @@ def _cap_pp_current(c: Corner, spec: Spec, output: bool) -> float:
     return span
 
 
+def _esr_limit(role: str, budget: float, ipp: float) -> Constraint:
+    """ESR so that the step it makes with ``ipp`` (A p-p) uses half the ripple
+    ``budget`` (V p-p); the other half is the capacitive ripple."""
+    return Constraint(
+        role,
+        "esr",
+        "<=",
+        budget / 2 / ipp if ipp > 0 else math.inf,
+        f"ESR step ≤ half of {q(budget, 'voltage')} p-p with {q(ipp, 'current')} p-p "
+        "capacitor current",
+        SRC_CAP_RIPPLE,
+    )
+
+
 def _output_cap(spec: Spec, ops: Sequence[Corner], full: Sequence[Corner]) -> Demand:
     role = "output_capacitor"
     budget = spec.vout_ripple_limit
@@ -463,15 +477,7 @@ def _output_cap(spec: Spec, ops: Sequence[Corner], full: Sequence[Corner]) -> De
             "the working bias",
             SRC_CAP_RIPPLE,
         ),
-        Constraint(
-            role,
-            "esr",
-            "<=",
-            budget / 2 / ipp if ipp > 0 else math.inf,
-            f"ESR step ≤ half of {q(budget, 'voltage')} p-p with {q(ipp, 'current')} p-p "
-            "capacitor current",
-            SRC_CAP_RIPPLE,
-        ),
+        _esr_limit(role, budget, ipp),
         Constraint(
             role,
             "i_ripple",
@@ -517,15 +523,7 @@ def _input_cap(spec: Spec, ops: Sequence[Corner], full: Sequence[Corner]) -> Dem
             f"{q(c_at.vin, 'voltage')} in, {q(c_at.iout, 'current')}",
             SRC_CAP_RIPPLE,
         ),
-        Constraint(
-            role,
-            "esr",
-            "<=",
-            budget / 2 / ipp if ipp > 0 else math.inf,
-            f"ESR step ≤ half of {q(budget, 'voltage')} p-p with {q(ipp, 'current')} p-p "
-            "capacitor current",
-            SRC_CAP_RIPPLE,
-        ),
+        _esr_limit(role, budget, ipp),
         Constraint(
             role,
             "i_ripple",
