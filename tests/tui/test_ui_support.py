@@ -63,3 +63,27 @@ def test_write_sheet_refuses_an_unknown_format(tmp_path) -> None:
 
     with pytest.raises(KitbinError, match="expected one of"):
         picking.write_sheet(None, "pdf", str(tmp_path / "x"))
+
+
+def test_plan_page_runs_the_matcher_once(demo_db: str, monkeypatch: pytest.MonkeyPatch) -> None:
+    # the plan view's ranked rows and its pick list come from one matcher run, and
+    # the pick list is the one `kitbin pick` builds on its own
+    from kitbin.picking import sheet_dict
+    from kitbin.services import matching, picking
+
+    runs: list[str] = []
+    real = matching.match_plan
+
+    def counted(*args, **kwargs):
+        runs.append(args[1])
+        return real(*args, **kwargs)
+
+    with open_store(demo_db) as store:
+        plan = picking.DEMO_PLAN
+        picking.demo_build_plan(store)
+        alone, _, _ = picking.build_sheet(store, plan)
+        monkeypatch.setattr(matching, "match_plan", counted)
+        monkeypatch.setattr(picking, "match_plan", counted)
+        page = ui_support.plan_page(store, plan)
+    assert runs == [plan]
+    assert sheet_dict(page["sheet"]) == sheet_dict(alone)

@@ -24,7 +24,7 @@ from __future__ import annotations
 import math
 import os
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
@@ -187,8 +187,12 @@ def build_sheet(
     boards: int = 1,
     use: Mapping[str, str] | None = None,
     sense: float = DEFAULT_SENSE,
+    matched: MatchResult | None = None,
 ) -> tuple[PickSheet, list[Chosen], MatchResult]:
     """A pick list with its bring-up sheet for a plan × boards (nothing is written).
+
+    ``matched`` is :func:`match_plan` of this plan and ``boards`` when the caller
+    has it already (any ``top``); otherwise the matcher runs here.
 
     Raises
     ------
@@ -202,7 +206,8 @@ def build_sheet(
         raise KitbinError(f"--boards {boards}: expected 1 or more")
     if not (sense > 0 and math.isfinite(sense)):
         raise KitbinError(f"--sense {sense!r}: expected a positive resistance")
-    m = match_plan(store, plan, top=1, boards=boards)
+    # a copy: a shortfall below may swap in a one-board divider
+    m = replace(matched) if matched is not None else match_plan(store, plan, top=1, boards=boards)
     known_roles = set(m.roles) | ({*DIVIDER_LINES, DIVIDER_ROLE} if m.divider else set())
     unknown = [r for r in use if r not in known_roles]
     if unknown:
@@ -301,7 +306,6 @@ def build_sheet(
 
 def _merge_same_bin(lines: list[PickLine]) -> list[PickLine]:
     """One bin used by two lines (e.g. the same capacitor in and out) must be free for both."""
-    from dataclasses import replace
 
     need: dict[str, int] = {}
     for ln in lines:
@@ -429,7 +433,6 @@ def _store_sheet(
     NULL. The sheet as ``kitbin pick --json`` shows it, with this id and state, is
     frozen in the list's ``snapshot``.
     """
-    from dataclasses import replace
 
     from kitbin.store.models import PickLine as PickLineRow
     from kitbin.store.models import PickList
@@ -503,7 +506,6 @@ def reserve(
     StockError
         When a role has no bin or too few parts are free; nothing is written.
     """
-    from dataclasses import replace
 
     sheet, chosen, m = build_sheet(store, name, boards=boards, use=dict(use or {}), sense=sense)
     pick_id = reserve_sheet(store, sheet, chosen, m.plan_id)
@@ -539,7 +541,6 @@ def save_draft(
     NotFoundError, KitbinError
         As :func:`build_sheet`; nothing is written.
     """
-    from dataclasses import replace
 
     sheet, chosen, m = build_sheet(store, plan, boards=boards, use=dict(use or {}), sense=sense)
     with store.transaction() as session:

@@ -244,7 +244,9 @@ def plan_page(
 
     detail = plans.show_plan(store, name)
     result = matching.match_plan(store, name, top=top, boards=boards)
-    sheet, _chosen, _m = picking.build_sheet(store, name, boards=boards, use=use or {}, sense=sense)
+    sheet, _chosen, _m = picking.build_sheet(
+        store, name, boards=boards, use=use or {}, sense=sense, matched=result
+    )
     return {
         "plan": detail,
         "match": result,
