@@ -115,8 +115,9 @@ def test_stage_and_plans_take_the_same_spec_options() -> None:
 
 
 def test_stage_takes_a_set_current_limit_target() -> None:
-    # a controller with a resistor-set limit: Rset = ilim_gain / Ilim (the window is
-    # Ilim to 1.1 Ilim, see docs/power-stage.md): with 100 kV and 2 A, 45.5k..50k
+    # a controller with a resistor-set limit: Rset = ilim_gain / Ilim, the set relation
+    # regulator data sheets give (from memory); the window Ilim to 1.1 Ilim is common
+    # practice, no source. With 100 kV and 2 A: 100k/2.2 = 45.5k to 100k/2 = 50k
     r = run(*BASE, "--ilim-gain", "100kV", "--ilim-target", "2A", "--json")
     assert r.exit_code == 0, r.output
     (low, high) = json.loads(r.stdout)["demands"]["set_resistor"]["constraints"]
